@@ -1,0 +1,91 @@
+"""Helpers shared by the subcommands: length arguments, atomic outputs, exit codes."""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import sys
+from pathlib import Path
+from typing import Any, Callable
+
+from ..calibration.model import atomic_write_text
+from ..errors import ProfilecheckError
+
+__all__ = ["dumps_json", "OutputSet", "exit_code_for", "info"]
+
+
+def dumps_json(obj: Any) -> str:
+    """Deterministic JSON: sorted keys, 2-space indent, non-finite floats as null."""
+    return json.dumps(_clean(obj), indent=2, sort_keys=True, allow_nan=False) + "\n"
+
+
+def _clean(o: Any) -> Any:
+    if isinstance(o, float):
+        return o if math.isfinite(o) else None
+    if isinstance(o, dict):
+        return {str(k): _clean(v) for k, v in o.items()}
+    if isinstance(o, (list, tuple)):
+        return [_clean(v) for v in o]
+    if hasattr(o, "item") and callable(o.item):  # numpy scalar
+        return _clean(o.item())
+    return o
+
+
+class OutputSet:
+    """Collect output files and write them only once everything has succeeded.
+
+    Each output is checked up front (its folder must exist) so a bad path fails before any
+    work; :meth:`commit` writes each file atomically. Nothing is written if the measurement
+    raised.
+    """
+
+    def __init__(self) -> None:
+        self._pending: list[tuple[Path, Callable[[Path], None]]] = []
+
+    @staticmethod
+    def check_path(path: str | os.PathLike[str] | None, what: str) -> Path | None:
+        if path is None:
+            return None
+        p = Path(path)
+        parent = p.parent if str(p.parent) else Path(".")
+        if not parent.is_dir():
+            raise ProfilecheckError(f"{what} {p}: folder {parent} does not exist")
+        if p.is_dir():
+            raise ProfilecheckError(f"{what} {p} is a folder, not a file")
+        return p
+
+    def add_text(self, path: Path | None, text: str) -> None:
+        if path is not None:
+            self._pending.append((path, lambda p, t=text: atomic_write_text(p, t)))
+
+    def add_writer(self, path: Path | None, writer: Callable[[Path], None]) -> None:
+        """``writer(tmp_path)`` writes the file at a temporary path; it is renamed after."""
+        if path is None:
+            return
+
+        def _write(p: Path, w=writer) -> None:
+            tmp = p.with_name(f".{p.name}.{os.getpid()}.tmp{p.suffix}")
+            try:
+                w(tmp)
+                os.replace(tmp, p)
+            finally:
+                if tmp.exists():
+                    tmp.unlink()
+
+        self._pending.append((path, _write))
+
+    def commit(self) -> None:
+        for path, write in self._pending:
+            write(path)
+        self._pending.clear()
+
+
+def exit_code_for(verdict_overall: str) -> int:
+    """0 for 'pass' or no spec ('none'); 1 for 'fail' or 'undecided'."""
+    return 0 if verdict_overall in ("pass", "none") else 1
+
+
+def info(msg: str) -> None:
+    """Progress and notes go to stderr; stdout carries the table or JSON."""
+    print(msg, file=sys.stderr)
