@@ -1,0 +1,126 @@
+"""``profilecheck thread``: measure a screw thread from a backlit silhouette image.
+
+::
+
+    profilecheck thread IMAGE --cal FILE [--spec DESIGNATION] [--json FILE]
+                        [--annotate PNG] [--units mm|in]
+
+Prints a table (pitch, flank angles, flats, depth; diameters and a virtual three-wire
+reading when both edges are in view) beside the spec's limits. Exit 0 measured (and within
+limits if a spec was given), 1 outside or undecided, 2 could not measure (one line on
+stderr; no output file written or changed).
+"""
+
+from __future__ import annotations
+
+import argparse
+
+__all__ = ["register", "run"]
+
+_EPILOG = """\
+examples:
+  profilecheck thread stay.png --cal bench_cam.json --spec M6x1-6g --annotate stay_check.png
+  profilecheck thread union.png --cal bench_cam.json --spec "3/16-40 ME" --units in --json union.json
+
+Stop the spindle before placing the camera or the part. The camera reading is one check
+among others: acceptance follows the thread standard (ISO 965-1, ASME B1.1/B1.2 ...), the
+drawing and local practice; where the fit matters, confirm with gauges or wires."""
+
+
+def register(subparsers) -> None:
+    p = subparsers.add_parser(
+        "thread", help="measure a thread (pitch, flanks, flats, diameters) from a silhouette",
+        description="Measure a screw thread from a calibrated backlit silhouette image: pitch, "
+                    "flank angles, crest and root flats, depth, and with both edges in view "
+                    "the major, pitch and minor diameters and a virtual wire reading.",
+        epilog=_EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
+    p.add_argument("image", metavar="IMAGE", help="silhouette image of the thread")
+    p.add_argument("--cal", required=True, metavar="FILE", help="calibration file (JSON)")
+    p.add_argument("--spec", metavar="DESIGNATION",
+                   help="thread designation, e.g. M6x1-6g, 1/4-20 UNC-2A, '3/16-40 ME'")
+    p.add_argument("--json", metavar="FILE", help="write the result as JSON")
+    p.add_argument("--annotate", metavar="PNG", help="write the picture with the fits drawn on it")
+    p.add_argument("--units", choices=("mm", "in"), default="mm",
+                   help="units of the terminal table (default mm)")
+    p.set_defaults(func=run)
+
+
+def run(args) -> int:
+    from ..calibration import load_calibration
+    from ..imaging import load_image
+    from ..measure import measure_thread
+    from ._common import OutputSet, dumps_json, exit_code_for, info
+
+    json_path = OutputSet.check_path(args.json, "--json")
+    png_path = OutputSet.check_path(args.annotate, "--annotate")
+    cal = load_calibration(args.cal)
+    spec = None
+    if args.spec:
+        from ..standards import thread_spec
+        spec = thread_spec(args.spec)
+    img = load_image(args.image)
+    result = measure_thread(img, cal, spec=spec)
+    d = result.to_dict()
+    d["image"] = args.image
+    d["calibration"] = dict(d["calibration"], file=args.cal)
+
+    outputs = OutputSet()
+    outputs.add_text(json_path, dumps_json(d))
+    if png_path is not None:
+        from ..report.annotate import draw_overlays, encode_png
+
+        data = encode_png(draw_overlays(img, result.overlays))
+
+        def _write(p, data=data):
+            p.write_bytes(data)
+
+        outputs.add_writer(png_path, _write)
+    text = _table(d, args.units)
+    outputs.commit()
+    print(text, end="")
+    for w in result.warnings:
+        info(f"warning: {w}")
+    return exit_code_for(result.verdict)
+
+
+def _table(d: dict, units: str) -> str:
+    try:
+        from ..report.table import format_table
+    except ImportError:  # report package not present: plain rows
+        return _plain(d, units)
+    text = format_table(d, units=units)
+    extra = []
+    inf = d.get("infeed")
+    if inf:
+        extra.append(_infeed_line(inf, units))
+    hx = d.get("helix") or {}
+    if hx.get("applied") and "pitch_diameter_correction_mm" in hx:
+        extra.append(f"helix correction: pitch diameter {hx['pitch_diameter_correction_mm'] * 1000:+.1f} um, "
+                     f"flanks {hx.get('flank_left_correction_deg', 0):+.3f} / "
+                     f"{hx.get('flank_right_correction_deg', 0):+.3f} deg ({hx['model']})")
+    elif hx.get("applied"):
+        extra.append(f"helix correction: flanks {hx.get('flank_left_correction_deg', 0):+.3f} / "
+                     f"{hx.get('flank_right_correction_deg', 0):+.3f} deg ({hx['model']})")
+    return text + "".join(e + "\n" for e in extra)
+
+
+def _infeed_line(inf: dict, units: str) -> str:
+    r = inf["radial"]["value"]
+    c = inf["compound"]["value"]
+    a = inf["compound_angle"]["value"]
+    if units == "in":
+        return (f"infeed still to go: radial {r / 25.4 * 1000:.2f} thou, compound "
+                f"{c / 25.4 * 1000:.2f} thou at {a:g} deg - {inf['note']}")
+    return (f"infeed still to go: radial {r * 1000:.0f} um, compound {c * 1000:.0f} um at "
+            f"{a:g} deg - {inf['note']}")
+
+
+def _plain(d: dict, units: str) -> str:
+    lines = []
+    for k, m in d["measurements"].items():
+        v, u, unit = m["value"], m["u"], m["unit"]
+        if unit == "mm" and units == "in":
+            v, u, unit = v / 25.4, u / 25.4, "in"
+        lines.append(f"{k:16s} {v:.5f} +/- {u:.5f} {unit}")
+    lines.append(f"verdict: {d['verdict']['overall']}")
+    return "\n".join(lines) + "\n"

@@ -1,0 +1,349 @@
+"""Subpixel edge points of a backlit silhouette: ``find_edges``.
+
+Pipeline (vision-notes section 6):
+
+1. linearise the grey levels (camera gamma) and mark clipped samples (top or bottom code);
+2. flatten the backlight and seed from the 50 % contour of the flattened image
+   (:mod:`.silhouette`, :mod:`._seeds`);
+3. at every row (column) crossing of the contour, fit the pixel-exact blurred-step model
+   (:mod:`._stepfit`) to the pixels of that row (column), with free dark level, contrast and
+   blur; window 2 x 5 sigma_e along the normal, at least 16 samples, cut short before a
+   neighbouring edge; clipped samples left out;
+4. reject profiles where the 1-D model does not hold (corners, junctions, narrow gaps):
+   high residual, blur far from the image's, position run away from the seed, too little
+   contrast, or a sharp turn of the contour;
+5. normals from the neighbouring fitted points.
+
+Least squares on the exact model is the maximum-likelihood estimate under Gaussian noise and
+reaches the Cramer-Rao bound (vision-notes sections 1.3 and 2); as the samples are the
+pixels themselves, it stays unbiased on exactly axis-aligned edges where interpolating
+estimators lock to the pixel grid.
+
+Known limits: on curved edges the row/column profiles cross the edge obliquely, which adds
+a small orientation-dependent term to the sigma_e^2 / (2 R) shift of curved edges; corner and
+junction points are dropped, never corrected, so take tips from intersected line fits.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from scipy.stats import chi2
+
+from ._edgeset import EdgeSet, empty_edgeset
+from ._seeds import Seeds, seeds_from_contours
+from ._stepfit import fit_steps
+from .silhouette import flatten_backlight, linearise
+
+__all__ = ["find_edges", "EdgeSet"]
+
+_SEED_SMOOTH_PX = 1.0      # Gaussian smoothing of the flattened image before contouring
+_MIN_HALF_WINDOW = 7       # 2 * 7 + 2 = 16 samples >= 15 (vision-notes section 6, rule 1)
+_MAX_HALF_WINDOW = 30
+_PILOT_HALF_WINDOW = 12
+_PILOT_N = 300
+_NU_POOL = 10.0            # prior degrees of freedom of the pooled noise in each point's std
+_RESID_P = 0.999           # chi-square quantile for the residual test
+_CLIP_WARN = 1e-4
+_NOISE_FLOOR_REL = 1e-3
+
+
+def _check_roi(roi, shape):
+    if roi is None:
+        return 0, 0, shape[1], shape[0]
+    try:
+        x0, y0, x1, y1 = (int(v) for v in roi)
+    except (TypeError, ValueError):
+        raise TypeError("roi must be (x_min, y_min, x_max, y_max) integers") from None
+    if not (0 <= x0 < x1 <= shape[1] and 0 <= y0 < y1 <= shape[0]):
+        raise ValueError(f"roi {tuple(roi)} is not inside the image of {shape[1]} x {shape[0]} px")
+    if x1 - x0 < 8 or y1 - y0 < 8:
+        raise ValueError("roi must be at least 8 x 8 pixels")
+    return x0, y0, x1, y1
+
+
+def _gather(img, flat, seeds: Seeds, idx, HW):
+    W = 2 * HW + 2
+    pos = seeds.pos[idx]
+    start = np.floor(pos).astype(int) - HW
+    along = start[:, None] + np.arange(W)[None, :]
+    line = seeds.line[idx][:, None]
+    ax = seeds.along_x[idx][:, None]
+    rows = np.where(ax, line, along)
+    cols = np.where(ax, along, line)
+    H, Wi = img.shape
+    inb = (rows >= 0) & (rows < H) & (cols >= 0) & (cols < Wi)
+    rr, cc = np.clip(rows, 0, H - 1), np.clip(cols, 0, Wi - 1)
+    return img[rr, cc], flat[rr, cc], inb, rr, cc, start
+
+
+def _window_mask(fvals, inb, hw, margin, HW):
+    """Samples inside each profile's own window, stopping short of a neighbouring edge."""
+    N, W = fvals.shape
+    j = np.arange(W)[None, :]
+    cls = fvals < 0.5
+    left_ref = cls[:, HW:HW + 1]
+    right_ref = cls[:, HW + 1:HW + 2]
+    eq_l = (cls[:, HW::-1] == left_ref) | ~inb[:, HW::-1]
+    eq_r = (cls[:, HW + 1:] == right_ref) | ~inb[:, HW + 1:]
+    run_l = np.cumprod(eq_l, axis=1).sum(1)
+    run_r = np.cumprod(eq_r, axis=1).sum(1)
+    lo = np.where(run_l >= HW + 1, 0, HW - run_l + 1 + margin)
+    hi = np.where(run_r >= W - HW - 1, W - 1, HW + run_r - margin)
+    lo = np.maximum(lo, HW - hw)
+    hi = np.minimum(hi, HW + 1 + hw)
+    m = inb & (j >= lo[:, None]) & (j <= hi[:, None])
+    direction = np.where(left_ref[:, 0], 1.0, -1.0)
+    return m, direction
+
+
+def _fit_group(img, flat, censored, seeds, idx, sigma_b, *, hw=None, t=None, x0=None, s0=None):
+    n_a = seeds.n_axis[idx]
+    n_o = seeds.n_other[idx]
+    se = math.sqrt(sigma_b ** 2 + 1.0 / 12.0)
+    if hw is None:
+        hw = np.clip(np.ceil(5.0 * se / n_a), _MIN_HALF_WINDOW, _MAX_HALF_WINDOW).astype(int)
+    HW = int(hw.max()) if len(hw) else _MIN_HALF_WINDOW
+    vals, fvals, inb, rr, cc, start = _gather(img, flat, seeds, idx, HW)
+    margin = np.ceil(2.5 * se / n_a).astype(int)
+    m_all, direction = _window_mask(fvals, inb, hw, margin, HW)
+    m = m_all & ~censored[rr, cc]
+    # where leaving out clipped samples leaves a side without a plateau, fall back to all
+    # samples (the clipping warning then stands for a known bias toward the dark side)
+    thin = ((m[:, :HW + 1].sum(1) < 3) | (m[:, HW + 1:].sum(1) < 3)) & ~(
+        (m_all[:, :HW + 1].sum(1) < 3) | (m_all[:, HW + 1:].sum(1) < 3))
+    m[thin] = m_all[thin]
+    if t is None:
+        t = n_o / n_a
+    if x0 is None:
+        x0 = seeds.pos[idx] - start
+    if s0 is None:
+        s0 = sigma_b / n_a
+    res = fit_steps(vals, m, direction, t, x0, s0)
+    n_left = (m[:, :HW + 1]).sum(1)
+    n_right = (m[:, HW + 1:]).sum(1)
+    enough = (n_left >= 3) & (n_right >= 3) & (m.sum(1) >= 10)
+    return res, start, direction, enough, hw, thin
+
+
+def _neighbour_normals(xy, contour, closed_of, k: int = 3):
+    n = len(xy)
+    tan = np.zeros_like(xy)
+    for c in np.unique(contour):
+        ii = np.flatnonzero(contour == c)
+        p = xy[ii]
+        m = len(ii)
+        if m < 2:
+            continue
+        j = np.arange(m)
+        if closed_of[c] and m > 2 * k:
+            a, b = p[(j + k) % m], p[(j - k) % m]
+        else:
+            a, b = p[np.minimum(j + k, m - 1)], p[np.maximum(j - k, 0)]
+        tan[ii] = a - b
+    norm = np.hypot(tan[:, 0], tan[:, 1])
+    ok = norm > 0
+    tan[ok] /= norm[ok, None]
+    return np.c_[-tan[:, 1], tan[:, 0]], ok
+
+
+def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
+               min_contour_px: int = 12) -> EdgeSet:
+    """Find subpixel edge points of the dark silhouette in a backlit image.
+
+    Parameters
+    ----------
+    img : ndarray (rows, cols)
+        Grey image in [0, 1] as :func:`load_image` returns (values at the top code 1.0 and
+        the bottom code 0.0 count as clipped).
+    roi : (x_min, y_min, x_max, y_max), optional
+        Search only pixels x_min <= col < x_max, y_min <= row < y_max. Points are returned in
+        full-image coordinates.
+    gamma : float
+        Decoding exponent for :func:`linearise` (1.0: the camera is linear).
+    min_contrast : float
+        Minimum bright-minus-dark level ([0, 1] scale) for the image and for each profile.
+    min_contour_px : int
+        Contours with fewer vertices than this (dust, specks) are ignored.
+
+    Returns
+    -------
+    EdgeSet
+        Possibly empty (then ``warnings`` says why): "nothing to measure" is a result.
+
+    Raises
+    ------
+    TypeError, ValueError
+        Bad arguments (named in the message).
+
+    Notes
+    -----
+    See the module docstring for the method. Positions are where the fitted step is half-way
+    between its levels: the geometric edge for incoherent, symmetric imaging. Partially
+    coherent backlights and residual gamma shift it (vision-notes section 4); calibrate the
+    edge offset with a gauge in the same light. Never use contour apexes at corners: the
+    50 % contour of a blurred 60 deg point recedes by 1.29 sigma (vision-notes 1.2);
+    intersect flank lines instead (:func:`intersect_lines`).
+
+    Examples
+    --------
+    >>> rows, cols = np.mgrid[0:60, 0:80]
+    >>> from scipy.special import ndtr
+    >>> img = 0.1 + 0.7 * ndtr((cols - 40.3) / 1.0)   # point-sampled blurred step, bright right
+    >>> e = find_edges(img)
+    >>> bool(abs(np.median(e.xy[:, 0]) - 40.3) < 0.05)
+    True
+    """
+    a = np.asarray(img)
+    if a.ndim != 2:
+        raise ValueError(f"img must be a 2-D grey image, got ndim={a.ndim}")
+    if not np.issubdtype(a.dtype, np.floating):
+        raise TypeError(f"img must be a float image in [0, 1] (see load_image), got {a.dtype}")
+    if not np.all(np.isfinite(a)):
+        raise ValueError("img contains non-finite values")
+    if isinstance(min_contrast, bool) or not (0 < float(min_contrast) < 1):
+        raise ValueError(f"min_contrast must be in (0, 1), got {min_contrast!r}")
+    if not isinstance(min_contour_px, (int, np.integer)) or min_contour_px < 3:
+        raise ValueError(f"min_contour_px must be an int >= 3, got {min_contour_px!r}")
+    x_off, y_off, x_end, y_end = _check_roi(roi, a.shape)
+    shape = a.shape
+    a = a[y_off:y_end, x_off:x_end].astype(np.float64, copy=False)
+    warnings: list[str] = []
+
+    top = a >= 1.0 - 1e-9
+    bottom = a <= 1e-9
+    censored = top | bottom
+    f_top = float(top.mean())
+    if float(bottom.mean()) > 0.01:
+        warnings.append("the dark part is clipped at zero: raise the camera's black level if "
+                        "it can be set (clipped samples were left out of the edge fits)")
+    lin = linearise(a, gamma)
+    sil = flatten_backlight(lin)
+    if sil.contrast < min_contrast:
+        warnings.append(f"backlight contrast {sil.contrast:.3f} is below {min_contrast:.3f}: no "
+                        "silhouette to measure (check the backlight and exposure)")
+        return empty_edgeset(shape, warnings)
+
+    from scipy.ndimage import gaussian_filter
+    from skimage.measure import find_contours
+
+    fs = gaussian_filter(sil.flat, _SEED_SMOOTH_PX, mode="nearest")
+    seeds = seeds_from_contours(find_contours(fs, 0.5), min_vertices=min_contour_px)
+    n_seed = len(seeds.pos)
+    if n_seed == 0:
+        warnings.append("no edge found: the image shows no dark silhouette on a bright field")
+        return empty_edgeset(shape, warnings)
+
+    # pilot fit on a spread-out subset, for the blur that sets the windows
+    usable = np.flatnonzero(~seeds.corner)
+    if len(usable) == 0:
+        usable = np.arange(n_seed)
+    pilot = usable[np.linspace(0, len(usable) - 1, min(_PILOT_N, len(usable))).astype(int)]
+    hw_p = np.full(len(pilot), _PILOT_HALF_WINDOW)
+    pr, _, _, p_enough, _, _ = _fit_group(lin, fs, censored, seeds, pilot, 1.0, hw=hw_p)
+    sb_p = pr.s * seeds.n_axis[pilot]
+    good_p = pr.converged & p_enough & np.isfinite(sb_p) & (pr.C > min_contrast)
+    sigma_b = float(np.median(sb_p[good_p])) if good_p.sum() >= 3 else 1.0
+    sigma_b = min(max(sigma_b, 0.2), 8.0)
+
+    idx = np.arange(n_seed)
+    res, start, direction, enough, hw, thin = _fit_group(lin, fs, censored, seeds, idx, sigma_b)
+
+    n_a = seeds.n_axis
+    sb = res.s * n_a
+    ok = res.converged & enough & np.isfinite(res.x0) & np.isfinite(res.var_x0_unit)
+    seed_x0 = seeds.pos - start
+    ok &= np.abs(res.x0 - seed_x0) <= 2.0
+    ok &= res.C >= max(min_contrast, 0.3 * sil.contrast)
+    ok &= ~seeds.corner
+    if ok.sum() >= 3:
+        med_sb = float(np.median(sb[ok]))
+    else:
+        med_sb = sigma_b
+    ok &= (sb <= 2.0 * med_sb + 0.5) & (sb >= 0.4 * med_sb - 0.2) & (res.s > 0.051)
+    dof = np.maximum(res.dof, 1.0)
+    s2 = res.rss / dof
+    if ok.sum() >= 3:
+        d_med = float(np.median(dof[ok]))
+        pooled = float(np.median(s2[ok])) / (1.0 - 2.0 / (9.0 * d_med)) ** 3
+    else:
+        pooled = float(np.median(s2))
+    # floor: a noise-free (rendered) image must not fail on model residuals far below any
+    # camera's noise (0.1 % of the contrast, a quarter of an 8-bit code at full contrast)
+    pooled = max(pooled, (_NOISE_FLOOR_REL * sil.contrast) ** 2)
+    ok &= s2 <= pooled * chi2.ppf(_RESID_P, dof) / dof
+
+    keep = np.flatnonzero(ok)
+    n_dropped = n_seed - len(keep)
+    if len(keep) == 0:
+        warnings.append("no edge point passed the edge-model checks (blur, contrast or noise too "
+                        "poor): refocus and check the lighting")
+        return empty_edgeset(shape, warnings, n_dropped)
+
+    ax = seeds.along_x[keep]
+    pos = start[keep] + res.x0[keep]
+    line = seeds.line[keep].astype(np.float64)
+    xy = np.where(ax[:, None], np.c_[pos, line], np.c_[line, pos])
+
+    # renumber contours 0..K-1 in order of appearance
+    src = seeds.contour[keep]
+    uniq, contour = np.unique(src, return_inverse=True)
+    closed = tuple(bool(seeds.closed[u]) for u in uniq)
+    normal, n_ok = _neighbour_normals(xy, contour, closed)
+    # orient dark -> bright: the profile's rising direction along its axis
+    dirk = direction[keep]
+    comp = np.where(ax, normal[:, 0], normal[:, 1])
+    flip = np.sign(comp) != np.sign(dirk)
+    normal[flip] *= -1
+    bad_n = ~n_ok | (np.abs(comp) < 0.5)
+    fallback = np.where(ax[:, None], np.c_[dirk, np.zeros_like(dirk)],
+                        np.c_[np.zeros_like(dirk), dirk])
+    normal[bad_n] = fallback[bad_n]
+
+    # refit where the neighbour normal changes the pixel-box shape noticeably
+    na_new = np.abs(np.where(ax, normal[:, 0], normal[:, 1]))
+    no_new = np.abs(np.where(ax, normal[:, 1], normal[:, 0]))
+    t_new = no_new / np.maximum(na_new, 1e-9)
+    t_old = seeds.n_other[keep] / seeds.n_axis[keep]
+    redo = np.flatnonzero(np.abs(t_new - t_old) > 0.02)
+    x0_k = res.x0[keep].copy()
+    s_k = res.s[keep].copy()
+    B_k, C_k = res.B[keep].copy(), res.C[keep].copy()
+    var_k = res.var_x0_unit[keep].copy()
+    rss_k, dof_k = res.rss[keep].copy(), dof[keep].copy()
+    if len(redo):
+        gi = keep[redo]
+        r2, st2, _, en2, _, _ = _fit_group(lin, fs, censored, seeds, gi, sigma_b, hw=hw[gi],
+                                        t=t_new[redo], x0=x0_k[redo], s0=s_k[redo])
+        good2 = r2.converged & en2 & (np.abs(r2.x0 - x0_k[redo]) < 0.5)
+        ri = redo[good2]
+        x0_k[ri], s_k[ri] = r2.x0[good2], r2.s[good2]
+        B_k[ri], C_k[ri], var_k[ri] = r2.B[good2], r2.C[good2], r2.var_x0_unit[good2]
+        rss_k[ri], dof_k[ri] = r2.rss[good2], np.maximum(r2.dof[good2], 1.0)
+        pos = start[keep] + x0_k
+        xy = np.where(ax[:, None], np.c_[pos, line], np.c_[line, pos])
+
+    if f_top > _CLIP_WARN:
+        n_fb = int(thin[keep].sum())
+        tail = (f"; at {n_fb} points the whole bright side is clipped and the edge reads toward "
+                "the dark side (about 0.2-0.4 px)" if n_fb else "")
+        warnings.append(f"{100 * f_top:.2f} % of pixels are clipped at full brightness: lower the "
+                        "exposure or backlight (clipped samples were left out of the edge fits"
+                        f"{tail})")
+    nak = seeds.n_axis[keep]
+    # per-point noise: own residual pooled with the image's (nu_0 = 10 prior dof)
+    s2_k = (rss_k + _NU_POOL * pooled) / (dof_k + _NU_POOL)
+    std_px = np.sqrt(np.maximum(var_k, 0.0) * s2_k) * nak
+    sigma_px = s_k * nak
+    blur = float(np.median(sigma_px))
+    if blur > 3.0:
+        warnings.append(f"edges are blurred (sigma {blur:.1f} px): refocus for best accuracy")
+    if n_dropped > 0.25 * n_seed:
+        warnings.append(f"{n_dropped} of {n_seed} edge points were dropped (corners, junctions, "
+                        "narrow gaps, dust or noise): check focus, cleanliness and lighting")
+    xy = xy + np.array([x_off, y_off], dtype=np.float64)
+    return EdgeSet(xy=xy, normal=normal, sigma_px=sigma_px, std_px=std_px, dark=B_k,
+                   bright=B_k + C_k, contour=contour.astype(int), closed=closed,
+                   n_dropped=int(n_dropped), noise_std=float(math.sqrt(pooled)),
+                   warnings=tuple(warnings), image_shape=tuple(int(s) for s in shape))

@@ -1,0 +1,223 @@
+"""Backlit silhouette: separate the dark part from an unevenly lit bright field.
+
+The backlight of a bench microscope is never flat: vignetting of 15 % and more toward the
+corners, a brighter spot where the LED panel sits, mild glare. A single global threshold
+then moves every edge in the dim corners. Instead:
+
+1. a first split of a reduced copy of the image by Otsu's threshold (N. Otsu, IEEE Trans.
+   SMC 9(1):62-66, 1979);
+2. a smooth background surface (2-D polynomial, degree 2-4) fitted by least squares to the
+   bright pixels away from the edges, trimmed iteratively at 3 robust standard deviations so
+   dust and glare spots do not pull it;
+3. the dark level from the interior of the dark part (median);
+4. the flattened image f = (img - dark) / (background - dark), which is ~0 in the part and
+   ~1 in the field everywhere; the silhouette is f < 0.5 (the 50 % level of an incoherent
+   backlit edge, vision-notes section 4), checked against Otsu's threshold of f.
+
+Only seeding and masks depend on this; edge positions come from local model fits with free
+levels (:mod:`profilecheck.imaging.edges`).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+__all__ = ["Silhouette", "flatten_backlight", "linearise", "clipping_fraction"]
+
+_REDUCED_LONG_SIDE = 128
+
+
+def linearise(img, gamma: float) -> np.ndarray:
+    """Undo a camera's gamma encoding: return ``img ** gamma``.
+
+    Parameters
+    ----------
+    img : ndarray
+        Grey image in [0, 1] (e.g. from :func:`load_image`).
+    gamma : float
+        Decoding exponent, > 0: 1.0 for a linear camera, about 2.2 for an sRGB-style
+        encoding (code = linear ** (1 / 2.2)).
+
+    Returns
+    -------
+    ndarray, float64
+
+    Notes
+    -----
+    An un-inverted gamma of 1/2.2 moves a blurred edge's 50 % point 0.81 sigma_e toward the
+    dark side (-0.82 px at sigma_b = 1 px), for thresholds and model fits alike
+    (vision-notes section 4): linearise before finding edges.
+    """
+    if isinstance(gamma, bool) or not isinstance(gamma, (int, float, np.floating, np.integer)):
+        raise TypeError(f"gamma must be a number, got {type(gamma).__name__}")
+    if not (gamma > 0) or not np.isfinite(gamma):
+        raise ValueError(f"gamma must be finite and > 0, got {gamma!r}")
+    a = np.asarray(img, dtype=np.float64)
+    if gamma == 1.0:
+        return a.copy()
+    return np.power(np.clip(a, 0.0, None), float(gamma))
+
+
+def clipping_fraction(img, *, top: float = 1.0) -> float:
+    """Fraction of pixels at (or above) the top code ``top``.
+
+    Parameters
+    ----------
+    img : ndarray
+        Grey image in [0, 1] as returned by :func:`load_image`.
+    top : float
+        The top code, 1.0 for images scaled by their full bit depth.
+
+    Returns
+    -------
+    float in [0, 1]
+
+    Notes
+    -----
+    A clipped backlight (true 300 DN recorded as 255) moves a blurred edge by -0.23 px at
+    sigma_b = 1 px and -0.42 px at sigma_b = 2 px (vision-notes section 4). Lower the exposure
+    until this is zero.
+    """
+    a = np.asarray(img)
+    if a.size == 0:
+        raise ValueError("img is empty")
+    return float(np.count_nonzero(a >= top - 1e-9)) / a.size
+
+
+@dataclass(frozen=True, eq=False)
+class Silhouette:
+    """Result of :func:`flatten_backlight`.
+
+    Attributes
+    ----------
+    flat : ndarray (rows, cols)
+        Flattened image, ~0 in the dark part, ~1 in the bright field.
+    mask : ndarray of bool
+        True in the dark part (flat < 0.5).
+    background : ndarray
+        Fitted bright-field level at every pixel (same units as the input).
+    dark_level : float
+        Median level inside the dark part.
+    contrast : float
+        Median of (background - dark_level) over the image.
+    otsu_level : float
+        Otsu's threshold of ``flat`` (close to 0.5 for a clean silhouette).
+    vignetting : float
+        1 - min(background) / max(background) over the image.
+    """
+
+    flat: np.ndarray
+    mask: np.ndarray
+    background: np.ndarray
+    dark_level: float
+    contrast: float
+    otsu_level: float
+    vignetting: float
+
+
+def _poly_terms(x, y, degree):
+    cols = []
+    for i in range(degree + 1):
+        for j in range(degree + 1 - i):
+            cols.append((x ** i) * (y ** j))
+    return np.stack(cols, axis=-1)
+
+
+def flatten_backlight(img, *, degree: int = 4) -> Silhouette:
+    """Estimate the backlight and the dark level, and flatten the image.
+
+    Parameters
+    ----------
+    img : ndarray (rows, cols)
+        Linear grey image (see :func:`linearise`).
+    degree : int
+        Highest degree of the background polynomial (2-6); lowered automatically when the
+        bright field covers little of the image.
+
+    Returns
+    -------
+    Silhouette
+
+    Raises
+    ------
+    ValueError
+        ``img`` is not a 2-D finite array of at least 8 x 8 pixels, or ``degree`` is out of range.
+    """
+    import cv2
+    from skimage.filters import threshold_otsu
+
+    a = np.asarray(img, dtype=np.float64)
+    if a.ndim != 2:
+        raise ValueError(f"img must be 2-D, got ndim={a.ndim}")
+    if min(a.shape) < 8:
+        raise ValueError(f"img must be at least 8 x 8 pixels, got {a.shape}")
+    if not np.all(np.isfinite(a)):
+        raise ValueError("img contains non-finite values")
+    if not (isinstance(degree, (int, np.integer)) and 2 <= degree <= 6):
+        raise ValueError(f"degree must be an int in 2..6, got {degree!r}")
+    rows, cols = a.shape
+    f = min(1.0, _REDUCED_LONG_SIDE / max(rows, cols))
+    small = cv2.resize(a, (max(8, round(cols * f)), max(8, round(rows * f))),
+                       interpolation=cv2.INTER_AREA) if f < 1 else a
+    if np.ptp(small) <= 0:
+        flat = np.ones_like(a)
+        return Silhouette(flat=flat, mask=np.zeros(a.shape, bool), background=a.copy(),
+                          dark_level=float(a.mean()), contrast=0.0, otsu_level=0.5,
+                          vignetting=0.0)
+    t0 = threshold_otsu(small)
+    bright0 = small > t0
+    dark0 = ~bright0
+    # keep away from edges: erode both classes by 2 reduced pixels
+    kern = np.ones((5, 5), np.uint8)
+    bright_core = cv2.erode(bright0.astype(np.uint8), kern).astype(bool)
+    dark_core = cv2.erode(dark0.astype(np.uint8), kern).astype(bool)
+    if bright_core.sum() < 20:
+        bright_core = bright0
+    if dark_core.sum() < 5:
+        dark_core = dark0
+    sr, sc = small.shape
+    yy, xx = np.mgrid[0:sr, 0:sc]
+    xn = (xx + 0.5) / sc * 2 - 1
+    yn = (yy + 0.5) / sr * 2 - 1
+    frac = bright_core.mean()
+    deg = degree if frac > 0.4 else (min(degree, 3) if frac > 0.15 else 2)
+    T = _poly_terms(xn, yn, deg)
+    use = bright_core.copy()
+    coef = None
+    for _ in range(5):
+        if use.sum() < T.shape[-1] * 3:
+            break
+        Tu = T[use]
+        # normal equations: terms of x, y in [-1, 1] up to degree 6 stay well conditioned
+        sol = np.linalg.solve(Tu.T @ Tu + 1e-12 * np.eye(Tu.shape[1]), Tu.T @ small[use])
+        coef = sol
+        res = small - T @ sol
+        rs = res[use]
+        scale = 1.4826 * np.median(np.abs(rs - np.median(rs))) + 1e-6
+        new = bright_core & (np.abs(res) < 3 * scale)
+        if np.array_equal(new, use):
+            break
+        use = new
+    dark_level = float(np.median(small[dark_core])) if dark_core.any() else float(small.min())
+    if coef is None:
+        bg_small = np.full_like(small, float(np.median(small[bright0])))
+    else:
+        bg_small = T @ coef
+    bright_med = float(np.median(small[bright0]))
+    # the polynomial is trusted near the field; clamp wild extrapolation over the part
+    floor = dark_level + 0.5 * (bright_med - dark_level)
+    bg_small = np.clip(bg_small, floor, None)
+    bg = cv2.resize(bg_small, (cols, rows), interpolation=cv2.INTER_LINEAR) if f < 1 else bg_small
+    denom = np.maximum(bg - dark_level, 1e-9)
+    flat = (a - dark_level) / denom
+    contrast = float(np.median(bg_small - dark_level))
+    try:
+        otsu = float(threshold_otsu(cv2.resize(flat, small.shape[::-1], interpolation=cv2.INTER_AREA)
+                                    if f < 1 else flat))
+    except ValueError:
+        otsu = 0.5
+    vig = 1.0 - float(bg_small.min() / bg_small.max()) if bg_small.max() > 0 else 0.0
+    return Silhouette(flat=flat, mask=flat < 0.5, background=bg, dark_level=dark_level,
+                      contrast=contrast, otsu_level=otsu, vignetting=vig)

@@ -1,0 +1,28 @@
+"""Screen colours of the overlay styles (no Qt; hex sRGB and dash patterns).
+
+Chosen to stay apart for the common colour-vision deficiencies (a blue / orange / grey
+verdict set, yellow and purple for data, dashed envelopes) and to read on a grey
+silhouette picture; every meaning is also carried by a word or a line pattern.
+"""
+
+from __future__ import annotations
+
+__all__ = ["OVERLAY_COLOURS", "OVERLAY_DASHED", "overlay_colour"]
+
+OVERLAY_COLOURS = {
+    "fit": "#ffd21f",          # yellow
+    "axis": "#00c8c8",         # cyan
+    "edge": "#c050ff",         # purple
+    "envelope_max": "#5aa0ff", # light blue, dashed
+    "envelope_min": "#ff9a3c", # light orange, dashed
+    "pass": "#2a6fdb",
+    "fail": "#e8871e",
+    "undecided": "#8a8a8a",
+    "info": "#ffffff",
+}
+OVERLAY_DASHED = frozenset({"envelope_max", "envelope_min", "axis"})
+
+
+def overlay_colour(style: str) -> str:
+    """Colour of an overlay style; unknown styles draw like 'info'."""
+    return OVERLAY_COLOURS.get(style, OVERLAY_COLOURS["info"])
