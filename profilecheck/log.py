@@ -33,7 +33,7 @@ import os
 import sqlite3
 from datetime import datetime, timezone
 from pathlib import Path
-from typing import Any, Mapping, Sequence
+from typing import Any, Mapping
 
 from .errors import LogError
 
@@ -407,7 +407,7 @@ class InspectionLog:
     def export_csv(self, path: str | os.PathLike[str]) -> int:
         """Write every reading of every record as a readings CSV
         (:data:`profilecheck.report.csv.COLUMNS`), atomically; return the row count."""
-        from .calibration.model import atomic_write_text
+        from .report.annotate import write_bytes_atomic
         from .report.csv import format_readings_csv
 
         sql = ("SELECT r.job, r.time, r.kind, r.image_path, r.spec, g.quantity, g.value, g.u, "
@@ -416,7 +416,7 @@ class InspectionLog:
         keys = ("job", "time", "kind", "image", "spec", "quantity", "value", "u", "unit", "min",
                 "max", "result", "source", "n_points")
         rows = [dict(zip(keys, r)) for r in self._con.execute(sql).fetchall()]
-        atomic_write_text(path, format_readings_csv(rows))
+        write_bytes_atomic(path, format_readings_csv(rows).encode("utf-8"))
         return len(rows)
 
     # -- lifetime ----------------------------------------------------------------------------

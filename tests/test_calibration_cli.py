@@ -8,7 +8,6 @@ import sys
 from pathlib import Path
 
 import cv2
-import numpy as np
 import pytest
 
 from profilecheck.calibration import load_calibration
@@ -94,3 +93,27 @@ def test_installed_entry_point(images, tmp_path):
     assert r.returncode == 2
     assert "Traceback" not in r.stderr and r.stderr.count("\n") == 1
     assert not out.exists()
+
+
+def test_lines_with_offset_from_a_pin_file(tmp_path, capsys):
+    # gamma-encoded renders (edges shifted toward the dark side): the line scale stays right
+    # and the pin file supplies the edge offset (vision-notes section 4)
+    from profilecheck.scenario.calibration import ruled_lines
+
+    cam = Camera(mm_per_px=0.00375, image_size=(640, 360))
+    length = field_length_mm(cam)
+    kw = dict(blur_px=1.0, noise=2.0, vignetting=0.15, gamma=2.2)
+    lines, _ = render(ruled_lines(0.5, 0.05, 5, tilt_deg=1.5, length_mm=length), cam, seed=5, **kw)
+    pin, _ = render([bar_polygon(0.8, length_mm=length, tilt_deg=2.0)], cam, seed=6, **kw)
+    cv2.imwrite(str(tmp_path / "lines.png"), lines)
+    cv2.imwrite(str(tmp_path / "pin.png"), pin)
+    assert main(["calibrate", str(tmp_path / "pin.png"), "--pin", "0.8mm", "--out", str(tmp_path / "p.json")]) == 0
+    assert main(["calibrate", str(tmp_path / "lines.png"), "--lines", "0.5mm", "--offset-from",
+                 str(tmp_path / "p.json"), "--out", str(tmp_path / "c.json")]) == 0
+    cal = load_calibration(tmp_path / "c.json")
+    assert abs(cal.mm_per_px / 0.00375 - 1.0) < 0.0005
+    assert cal.gauge["kind"] == "combined" and cal.edge_offset_px < -0.2
+    assert "edge offset" in capsys.readouterr().out
+    # --offset-from with --pin is a usage mistake: exit 2
+    assert main(["calibrate", str(tmp_path / "pin.png"), "--pin", "0.8mm", "--offset-from",
+                 str(tmp_path / "p.json"), "--out", str(tmp_path / "x.json")]) == 2

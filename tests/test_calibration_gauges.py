@@ -13,7 +13,8 @@ import numpy as np
 import pytest
 
 from profilecheck.calibration import (calibrate_from_block, calibrate_from_lines,
-                                      calibrate_from_pin, combine, measure_pin)
+                                      calibrate_from_pin, calibrate_from_two_pins, combine,
+                                      measure_pin)
 from profilecheck.errors import CalibrationError, MeasurementError
 from profilecheck.scenario.calibration import bar_polygon, field_length_mm, ruled_lines
 from profilecheck.synth import Camera, render
@@ -183,8 +184,30 @@ def test_lines_plus_pin_measure_a_third_size(scale_images):
     assert abs(m_single.value - 0.3) <= m_single.u  # ...and the extra uncertainty covers it
 
 
+def test_two_pins_separate_scale_and_offset(scale_images):
+    # the offset adds 2b to both widths and cancels in their difference (vision-notes 4);
+    # the offset itself agrees with the line-scale value of the test above (-0.32 px)
+    _, pin, small = scale_images[2.2]
+    cal = calibrate_from_two_pins(pin, 0.8, small, 0.3)
+    assert abs(cal.mm_per_px / 0.00375 - 1.0) < 0.0005
+    assert abs(cal.mm_per_px - 0.00375) <= cal.u_mm_per_px
+    assert cal.edge_offset_px == pytest.approx(-0.32, abs=0.08)
+    assert not cal.scale_absorbs_offset
+    with pytest.raises(ValueError, match="differ"):
+        calibrate_from_two_pins(pin, 0.8, small, 0.7)
+
+
 def test_too_few_lines():
     cam = Camera(mm_per_px=0.00375, image_size=(640, 360))
     img = _img(ruled_lines(0.5, 0.05, 2, length_mm=field_length_mm(cam)), camera=cam, seed=13)
     with pytest.raises(CalibrationError, match="complete line"):
         calibrate_from_lines(img, 0.5)
+
+
+def test_measure_pin_flags_a_focus_change(pin_image):
+    cal = calibrate_from_pin(pin_image, 1.5)  # rendered at blur 1.2 px
+    soft = _img([bar_polygon(1.5, length_mm=L, tilt_deg=1.0)], seed=14, blur=2.4)
+    m = measure_pin(soft, cal)
+    assert "focus may have changed" in m.note
+    sharp = _img([bar_polygon(1.5, length_mm=L, tilt_deg=1.0)], seed=15, blur=1.2)
+    assert "focus" not in measure_pin(sharp, cal).note

@@ -6,6 +6,7 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given, settings, strategies as st
 
 from profilecheck.calibration import (Lens, undistort_points, distort_points, ray_tilt_rad,
                                       ray_directions, cylinder_apparent_diameter_mm,
@@ -120,3 +121,21 @@ def test_grid_pattern_not_found_and_bad_pattern():
         calibrate_grid([blank] * 4, 1.0, pattern=(7, 5))
     with pytest.raises(ValueError, match="pattern"):
         calibrate_grid([blank] * 4, 1.0, pattern=(2, 5))
+
+
+
+@settings(max_examples=40, deadline=None)
+@given(x=st.floats(0.0, 1599.0), y=st.floats(0.0, 1199.0), k1=st.floats(-0.9, 0.5))
+def test_distort_then_undistort_is_identity(x, y, k1):
+    # inverse pair over the whole 1600 x 1200 field at f = 5000 px (|k1 r^2| <= 3.6 %)
+    lens = _lens(k1)
+    p = np.array([[x, y]])
+    np.testing.assert_allclose(undistort_points(distort_points(p, lens), lens), p, rtol=0, atol=1e-7)
+
+
+@settings(max_examples=60, deadline=None)
+@given(d=st.floats(0.1, 30.0), z=st.floats(20.0, 500.0))
+def test_cylinder_inverse_property(d, z):
+    a = cylinder_apparent_diameter_mm(d, z)
+    assert a >= d
+    assert cylinder_axial_diameter_mm(a, z) == pytest.approx(d, rel=1e-12)

@@ -180,3 +180,31 @@ def test_fit_line_bad_input(bad):
 def test_fit_circle_collinear_points_rejected():
     with pytest.raises(ValueError, match="xy"):
         fit_circle(np.c_[np.arange(10.0), np.arange(10.0)])
+
+
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+
+@settings(max_examples=20, deadline=None)
+@given(rot_deg=st.floats(-180, 180), tx=st.floats(-500, 500), ty=st.floats(-500, 500),
+       seed=st.integers(0, 2 ** 16))
+def test_line_and_circle_fits_move_with_a_rigid_motion(rot_deg, tx, ty, seed):
+    # A rigid motion of the points moves the fitted line and circle with it (analytic geometry):
+    # angle + rotation, same residual, same radius and uncertainties.
+    rng = np.random.default_rng(seed)
+    t = np.linspace(0, 80, 50)
+    pts = np.c_[t, 5 + 0.3 * t + rng.normal(0, 0.05, t.size)]
+    th = np.linspace(0, 2.0, 60)
+    arc = np.c_[30 + 12 * np.cos(th), 20 + 12 * np.sin(th)] + rng.normal(0, 0.02, (60, 2))
+    a = math.radians(rot_deg)
+    R = np.array([[math.cos(a), -math.sin(a)], [math.sin(a), math.cos(a)]])
+    move = lambda p: p @ R.T + [tx, ty]  # noqa: E731
+    f0, f1 = fit_line(pts), fit_line(move(pts))
+    d_ang = (f1.angle_rad - f0.angle_rad - a + math.pi) % (2 * math.pi) - math.pi
+    assert abs(d_ang) < 1e-9
+    assert_allclose(f1.rms_px, f0.rms_px, rtol=1e-6, atol=1e-12)
+    assert_allclose(f1.std_angle_rad, f0.std_angle_rad, rtol=1e-6)
+    c0, c1 = fit_circle(arc), fit_circle(move(arc))
+    assert_allclose(c1.radius, c0.radius, rtol=0, atol=1e-8)
+    assert_allclose(c1.centre, move(c0.centre[None])[0], rtol=0, atol=1e-7)
+    assert_allclose(c1.std_radius_px, c0.std_radius_px, rtol=1e-5)

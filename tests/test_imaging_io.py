@@ -151,3 +151,21 @@ def test_bad_calls():
         load_image("x.png", max_pixels=0)
     with pytest.raises(TypeError, match="max_pixels"):
         load_image("x.png", max_pixels=1.5)
+
+
+def test_tiff_header_claiming_more_than_file_holds(tmp_path):
+    # a minimal little-endian TIFF 6.0 (baseline, uncompressed) whose size tags lie:
+    # 20000 x 20000 8-bit grey with a 16-byte strip
+    entries = [(256, 4, 1, 20000), (257, 4, 1, 20000), (258, 3, 1, 8), (259, 3, 1, 1),
+               (262, 3, 1, 1), (273, 4, 1, 8 + 2 + 12 * 8 + 4), (277, 3, 1, 1),
+               (279, 4, 1, 16)]
+    ifd = struct.pack("<H", len(entries))
+    for tag, typ, count, value in entries:
+        val = struct.pack("<HH", value, 0) if typ == 3 else struct.pack("<I", value)
+        ifd += struct.pack("<HHI", tag, typ, count) + val
+    data = b"II*\x00" + struct.pack("<I", 8) + ifd + struct.pack("<I", 0) + bytes(16)
+    p = tmp_path / "liar.tif"
+    p.write_bytes(data)
+    with pytest.raises(ImageError, match="more than") as e:
+        load_image(p, max_pixels=10 ** 9)
+    _one_line(str(e.value), "liar.tif")

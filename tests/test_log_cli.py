@@ -182,3 +182,13 @@ def test_auto_scale_bar_round_lengths():
     assert bar.length_mm == pytest.approx(0.5) and bar.length_px == pytest.approx(50.0)
     assert auto_scale_bar(0.01, 1600).length_mm == pytest.approx(2.0)
     assert auto_scale_bar(0.002, 1000).text == "200 \u00b5m"
+
+
+def test_damaged_log_refused_before_measuring(bench, capsys, tmp_path):
+    log = tmp_path / "shop.db"
+    log.write_bytes(b"not a database at all" * 50)
+    out = tmp_path / "r.json"
+    code = cli.main(["check", str(bench / "same.png"), "--cal", str(bench / "cal.json"),
+                     "--pin", "2.000mm", "--log", str(log), "--json", str(out)])
+    assert code == 2 and not out.exists()
+    assert "not a readable inspection log" in capsys.readouterr().err

@@ -93,3 +93,23 @@ def test_malformed_entries_skipped_not_raised():
          "verdict": {"checks": [{"name": 3}, "junk"]}}
     text = format_table(r, ascii_only=True)
     assert "crest flat" in text and "pitch " not in text.split("----")[-1]
+
+
+def test_infeed_and_advice_lines():
+    # M6x1-6g: d2 mid-tolerance (5.212 + 5.324)/2 = 5.268 mm (ISO 965-1 [P 5]); a thread at
+    # d2 = 5.3512 mm has (5.3512 - 5.268)/2 = 0.0416 mm radial to go, i.e. compound travel
+    # 0.0416 / cos 29.5 deg = 0.04781 mm (trigonometry; standards-notes §10 set-over).
+    import math
+
+    radial = (5.3512 - 5.268) / 2
+    r = _result(5.3512, 0.008)
+    r["infeed"] = {"radial": {"value": radial, "u": 0.004, "unit": "mm"},
+                   "compound": {"value": radial / math.cos(math.radians(29.5)), "u": 0.0046,
+                                "unit": "mm"},
+                   "compound_angle": {"value": 29.5, "unit": "deg"},
+                   "note": "take the remaining infeed in light passes"}
+    r["advice"] = ["take a spring pass"]
+    text = format_table(r, ascii_only=True)
+    assert "infeed to go, radial: 0.0416 mm (0.00164 in) +/- 4.0 um" in text
+    assert "infeed to go, compound: 0.0478 mm (0.00188 in) +/- 4.6 um at 29.5 deg" in text
+    assert "light passes" in text and "  - take a spring pass" in text

@@ -153,3 +153,16 @@ def test_bad_metric_designations(text, fragment):
     with pytest.raises(SpecError) as e:
         thread_spec(text)
     assert fragment in str(e.value) and "\n" not in str(e.value)
+
+
+def test_normal_length_of_engagement():
+    # ISO 965-1 Table 2 rows via standards-notes §2 [C 2]; the §13.2 formula misses the table
+    # (M6x1: 3.39-10.1 mm vs 3-9 mm, standards-notes §12.6)
+    from profilecheck.standards.iso_metric import normal_engagement_mm
+    for d, p, lo, hi in ((3, 0.5, 1.5, 4.5), (6, 1.0, 3, 9), (10, 1.5, 5, 15), (12, 1.75, 6, 18),
+                         (20, 2.5, 10, 30)):
+        n = normal_engagement_mm(d, p)
+        assert (n.min_mm, n.max_mm) == (lo, hi) and n.source == "ISO 965-1 table 2"
+    dm = math.sqrt(5.6 * 11.2) ** 0.2
+    assert 2.24 * dm == pytest.approx(3.39, abs=0.01) and 6.7 * dm == pytest.approx(10.1, abs=0.05)
+    assert normal_engagement_mm(7, 0.75).source == "formula-derived"

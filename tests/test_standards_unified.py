@@ -191,6 +191,8 @@ def test_basic_dimensions_number_size():
     ("1/4 UNC-2A", "threads per inch"),
     ("13/64-20 UNC-2A", "UNS"),             # no UNC thread of that size
     ("1/4-0 UNS-2A", "above zero"),
+    ("#3-8 UN-2A", "too coarse"),            # pitch above half the diameter
+    ("5/16-999 UNS-2B", "tolerances are larger than the thread depth"),
 ])
 def test_bad_unified_designations(text, fragment):
     with pytest.raises(SpecError) as e:

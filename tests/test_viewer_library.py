@@ -75,7 +75,8 @@ def test_height_job_on_a_render(qtbot, win, height_frame):
     t = win.readings_panel.table
     row = [t.item(0, c).text() for c in range(5)]
     assert row[0].startswith("Height")
-    assert row[1] == f"{m.value:.4f} \u00b1 {m.u:.4f}"          # the library's number, shown
+    shown_v, shown_u = (float(x) for x in row[1].split(" \u00b1 "))  # the library's number
+    assert abs(shown_v - m.value) <= 0.5e-4 and abs(shown_u - m.u) <= 0.5e-4
     assert row[4] == "\u2714 PASS"                               # 0.05 inside +/-0.1 mm
     assert len(win.canvas.overlay_items) >= 2                    # tip and axis drawn
 
@@ -105,3 +106,47 @@ def test_library_error_reaches_the_status_line(qtbot, win):
         qtbot.mouseClick(win.job_panel.run_button, Qt.LeftButton)
     assert win.status_label.text().startswith("Could not measure:")
     assert win.readings_panel.table.rowCount() == 0
+
+
+def test_saved_json_is_the_library_report_for_the_same_file(qtbot, win, height_frame, tmp_path):
+    import json
+
+    import cv2
+
+    from profilecheck.calibration import save_calibration
+    from profilecheck.commands._common import dumps_json
+    from profilecheck.measure import measure_height
+    pic, calf = tmp_path / "height.png", tmp_path / "cal.json"
+    cv2.imwrite(str(pic), height_frame)
+    cal = Calibration(mm_per_px=MM_PER_PX, u_mm_per_px=2e-6, image_size=SIZE)
+    save_calibration(cal, calf)
+    assert win.open_image(pic) and win.open_calibration(calf)
+    win.model.set_mode("height")
+    _run(qtbot, win)
+    saved = win.save_results(tmp_path / "out")
+    assert saved is not None and saved.sheet is not None
+    # what the command line writes: the library's report of the same file, same JSON writer
+    direct = json.loads(dumps_json(measure_height(str(pic), cal).to_dict()))
+    mine = json.loads(saved.json.read_text())
+    assert mine["measurements"] == direct["measurements"]
+    assert mine["verdict"] == direct["verdict"]
+    assert mine["kind"] == "height" and mine["image"] == str(pic)
+    back = cv2.imread(str(saved.raw), cv2.IMREAD_UNCHANGED)
+    assert np.array_equal(back, height_frame)          # the raw frame, untouched
+    assert "<html" in saved.sheet.read_text().lower()
+
+
+def test_axis_saved_from_a_point_serves_a_line_job(qtbot, win, height_frame, tmp_path):
+    win.model.set_image(height_frame / 255.0, raw=height_frame, name="height")
+    win.model.set_calibration(Calibration(mm_per_px=MM_PER_PX, u_mm_per_px=2e-6, image_size=SIZE))
+    win.model.set_mode("height")
+    first = _run(qtbot, win)
+    assert win.job_panel.save_axis_button.isEnabled()
+    assert win.save_axis(tmp_path / "axis.json")
+    assert win.model.params.axis_path == str(tmp_path / "axis.json")
+    win.job_panel.reference_box.setCurrentIndex(2)          # 'line'
+    assert win.model.params.reference == "line" and win.job_panel.axis_row.isEnabled()
+    second = _run(qtbot, win)
+    a = first.result.measurements["height_offset"].value
+    b = second.result.measurements["height_offset"].value
+    assert abs(b - a) < 0.002 and abs(b - TIP_HEIGHT_MM) < 0.01  # same axis, same picture

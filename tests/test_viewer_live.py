@@ -91,6 +91,8 @@ def test_live_frames_measurements_rate_and_loss(qtbot, live_win):
 
 def test_rate_readout_while_live(qtbot, live_win):
     w = live_win
+    w.live.source_factory = lambda: SequenceSource(FRAMES, label="cam A", fps=60.0, loop=True,
+                                                   count=240)
     w.start_camera()
     qtbot.waitUntil(lambda: "frames/s" in w.camera_panel.fps_label.text()
                     and "measured/s" in w.camera_panel.fps_label.text()

@@ -91,6 +91,8 @@ def test_inch_and_angle_text():
     # 1 in = 25.4 mm exactly (international inch, 1959): 5.300 mm = 0.208661 in.
     assert inch_text(5.300, 0.0254) == "0.20866 \u00b1 0.00100 in"
     assert mm_text(5.300, 0.004) == "5.3000 \u00b1 0.0040 mm"
+    # U quoted to two significant digits (JCGM 100:2008 7.2.6): more decimals for a small U
+    assert mm_text(1.000003, 0.000015) == "1.000003 \u00b1 0.000015 mm"
     # 29.95 deg = 29 deg 57.0 min; 0.1 deg = 6.0 min (60 min per degree).
     assert inch_text(29.95, 0.1, "deg") == "29\u00b0 57.0' \u00b1 6.0'"
 
@@ -207,3 +209,28 @@ def test_save_refuses_missing_folder_and_writes_nothing(tmp_path):
     with pytest.raises(ProfilecheckError, match="does not exist"):
         save_outcome(tmp_path / "nope" / "x", out, img, img)
     assert list(tmp_path.iterdir()) == []
+
+
+def test_camera_that_is_not_there_is_a_message_not_a_crash():
+    from profilecheck.viewer.frames import CameraSource
+    src = CameraSource(63)   # no such device on a test machine
+    with pytest.raises(CameraLost, match="no camera answers as number 63"):
+        src.open()
+    with pytest.raises(ValueError, match="index"):
+        CameraSource(-1)
+
+
+def test_view_command_refuses_a_missing_folder_with_exit_2(tmp_path, capsys):
+    from profilecheck.cli import main
+    code = main(["view", "--screenshot", str(tmp_path / "no" / "shot.png")])
+    err = capsys.readouterr().err
+    assert code == 2 and "does not exist" in err and len(err.strip().splitlines()) == 1
+
+
+def test_view_command_reads_gauge_sizes_with_units():
+    from profilecheck.cli import build_parser
+    args = build_parser().parse_args(["view", "pin.png", "--pin", "0.25in", "--cal", "c.json",
+                                      "--run-mode", "calibrate", "--screenshot", "s.png"])
+    assert args.image == "pin.png" and args.pin == "0.25in" and args.run_mode == "calibrate"
+    from profilecheck.units import parse_length
+    assert parse_length(args.pin) == pytest.approx(6.35, abs=1e-12)  # 1 in = 25.4 mm exactly

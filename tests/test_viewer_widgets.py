@@ -115,6 +115,7 @@ def test_height_mode_undecided_and_reference_choice(qtbot, win):
     assert win.model.params.reference == "bar"
     win.model.set_params(reference="line")
     assert win.job_panel.reference_box.currentData() == "line"
+    win.model.set_params(reference="point")
     _run(qtbot, win)
     assert win.readings_panel.table.item(0, 4).text() == "? UNDECIDED"
 
@@ -167,3 +168,26 @@ def test_save_from_the_window(qtbot, win, tmp_path):
     saved = win.save_results(tmp_path / "h1")
     assert saved is not None and saved.json.exists() and saved.raw.exists()
     assert "Saved h1.png" in win.status_label.text()
+
+
+def test_line_reference_needs_an_axis_file(qtbot, win):
+    win.model.set_mode("height")
+    win.model.set_params(reference="line")
+    assert win.job_panel.axis_row.isEnabled()
+    with qtbot.waitSignal(win.runner.failed, timeout=10000):
+        qtbot.mouseClick(win.job_panel.run_button, Qt.LeftButton)
+    assert "saved axis file" in win.status_label.text()
+    qtbot.keyClicks(win.job_panel.axis_edit, "axis.json")
+    assert win.model.params.axis_path == "axis.json"
+
+
+def test_result_for_a_replaced_picture_is_dropped(qtbot, win):
+    win.backend.delay_s = 5.0
+    win.backend.release.clear()
+    win.model.set_mode("thread")
+    qtbot.mouseClick(win.job_panel.run_button, Qt.LeftButton)
+    qtbot.waitUntil(lambda: win.model.busy, timeout=2000)
+    win.model.set_image(np.zeros((120, 160)), name="another picture")
+    with qtbot.waitSignal(win.runner.failed, timeout=10000):
+        win.backend.release.set()
+    assert win.model.outcome is None and "changed while measuring" in win.status_label.text()

@@ -20,7 +20,7 @@ from .gauges import utc_now, _expected_width_mm, ASSUMED_EDGE_OFFSET_BOUND_PX
 from .grid import GridCalibration
 from .model import Calibration, Lens
 
-__all__ = ["combine", "attach_lens", "grid_record"]
+__all__ = ["combine", "attach_lens", "grid_record", "calibrate_from_two_pins"]
 
 
 def combine(scale_cal: Calibration, offset_cal: Calibration, *, label: str | None = None) -> Calibration:
@@ -159,3 +159,72 @@ def grid_record(grid: GridCalibration, *, label: str = "") -> Calibration:
         created=utc_now(), label=str(label), edge_offset_px=0.0,
         u_edge_offset_px=K_COVERAGE * ASSUMED_EDGE_OFFSET_BOUND_PX / math.sqrt(3.0),
         scale_absorbs_offset=False, gamma=1.0, lens=lens, notes=tuple(notes))
+
+
+def calibrate_from_two_pins(image_a, diameter_a_mm: float, image_b, diameter_b_mm: float, *,
+                            u_gauge_a_mm: float = 0.0, u_gauge_b_mm: float = 0.0, gamma: float = 1.0,
+                            label: str = "", roi_a=None, roi_b=None) -> Calibration:
+    """Scale and edge offset from two pins of different diameter in the same set-up.
+
+    The edge offset adds the same 2 b px to both widths, so it cancels in their
+    difference: s = (D_b - D_a) / (W_b - W_a), and then b = (W_a - D_a / s) / 2
+    (../shared/vision-notes.md section 4). Telecentric view assumed (no lens model).
+
+    Parameters
+    ----------
+    image_a, image_b : (H, W) arrays or paths
+        One pin each, same camera, focus and light.
+    diameter_a_mm, diameter_b_mm : float
+        Their certified diameters; they should differ by at least a third of the larger.
+    u_gauge_a_mm, u_gauge_b_mm : float
+        Their expanded uncertainties (k = 2).
+    gamma, label
+        As in :func:`calibrate_from_pin`.
+    roi_a, roi_b : (x_min, y_min, x_max, y_max), optional
+
+    Returns
+    -------
+    Calibration
+        ``scale_absorbs_offset = False``. U(s)/s = 2 sqrt(std_Wa^2 + std_Wb^2 + (u_Da^2 +
+        u_Db^2) / (4 s^2)) / (W_b - W_a) (GUM 5.1.2; u_D are the expanded gauge values).
+
+    Raises
+    ------
+    CalibrationError
+        Either pin not found, images of different sizes, or diameters too close together.
+    """
+    from .gauges import _bar, _check_size, _check_u, _check_gamma
+
+    da = _check_size("diameter_a_mm", diameter_a_mm)
+    db = _check_size("diameter_b_mm", diameter_b_mm)
+    ua = _check_u("u_gauge_a_mm", u_gauge_a_mm)
+    ub = _check_u("u_gauge_b_mm", u_gauge_b_mm)
+    g = _check_gamma(gamma)
+    if abs(db - da) < max(da, db) / 3.0:
+        raise ValueError("diameter_a_mm and diameter_b_mm must differ by at least a third of the larger")
+    img_a, edges_a, bar_a = _bar(image_a, "pin", roi_a, g, None)
+    img_b, _, bar_b = _bar(image_b, "pin", roi_b, g, None)
+    if img_a.shape != img_b.shape:
+        raise CalibrationError(f"the two pin images differ in size ({img_a.shape[1]} x {img_a.shape[0]} "
+                               f"and {img_b.shape[1]} x {img_b.shape[0]} px): use one set-up")
+    dw = bar_b.width_px - bar_a.width_px
+    if dw * (db - da) <= 0:
+        raise CalibrationError("the larger pin does not look larger: check which image holds which pin")
+    s = (db - da) / dw
+    std_s = s * combine_u(bar_a.std_width_px, bar_b.std_width_px,
+                          (ua / K_COVERAGE) / s, (ub / K_COVERAGE) / s) / abs(dw)
+    b = 0.5 * (bar_a.width_px - da / s)
+    std_b = 0.5 * combine_u(bar_a.std_width_px, (ua / K_COVERAGE) / s, (da / s) * std_s / s)
+    notes = [str(w) for w in getattr(edges_a, "warnings", ())]
+    notes.append(f"scale from the difference of two pins ({da:.4f} and {db:.4f} mm); edge offset "
+                 f"{b:+.3f} px")
+    gauge = {"kind": "two_pins", "size_mm": da, "u_mm": ua, "width_px": bar_a.width_px,
+             "std_width_px": bar_a.std_width_px, "second_size_mm": db, "second_u_mm": ub,
+             "second_width_px": bar_b.width_px, "n_points": bar_a.n_points + bar_b.n_points,
+             "rms_px": max(bar_a.rms_px, bar_b.rms_px)}
+    return Calibration(
+        mm_per_px=s, u_mm_per_px=K_COVERAGE * std_s,
+        image_size=(int(img_a.shape[1]), int(img_a.shape[0])), gauge=gauge, created=utc_now(),
+        label=str(label), edge_offset_px=float(b), u_edge_offset_px=float(K_COVERAGE * std_b),
+        scale_absorbs_offset=False, gamma=g, blur_px=0.5 * (bar_a.blur_px + bar_b.blur_px),
+        notes=tuple(notes))

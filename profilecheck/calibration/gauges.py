@@ -42,6 +42,11 @@ ASSUMED_EDGE_OFFSET_BOUND_PX = 0.5
 MAX_FOCUSED_BLUR_PX = 3.0
 
 
+#: Relative change of the fitted edge blur against the calibration's that is reported as a
+#: possible focus change (ours, no source).
+FOCUS_CHANGE = 0.3
+
+
 def utc_now() -> str:
     """Current time, ISO 8601 UTC to the second (``2026-12-01T23:40:00+00:00``)."""
     return datetime.now(timezone.utc).isoformat(timespec="seconds")
@@ -140,9 +145,9 @@ def _gauge_cal(kind: str, size_mm: float, bar: BarEdges, edges: Any, img: np.nda
                thickness_mm: float = 0.0) -> Calibration:
     s = _scale_from_width(kind, size_mm, bar.width_px, lens, thickness_mm)
     rel_std = combine_u(bar.std_width_px / bar.width_px, (u_gauge_mm / K_COVERAGE) / size_mm)
-    notes = [f"scale from one {size_mm:.4f} mm {kind}: it includes the edge offset; sizes far "
-             f"from {size_mm:.3f} mm carry up to {2 * ASSUMED_EDGE_OFFSET_BOUND_PX:.1f} px x "
-             f"(1 - size/{size_mm:.3f}) extra; add a line-scale calibration (combine) for them"]
+    notes = [f"scale from one {size_mm:.4f} mm {kind}: it includes the edge offset, so widths "
+             f"far from {size_mm:.3f} mm carry an extra +/-{2 * ASSUMED_EDGE_OFFSET_BOUND_PX:.1f} px x "
+             f"|1 - size/{size_mm:.3f}|; add a line-scale calibration (combine) to remove it"]
     notes += [str(w) for w in getattr(edges, "warnings", ())]
     if math.isfinite(bar.blur_px) and bar.blur_px > MAX_FOCUSED_BLUR_PX:
         notes.append(f"edges are soft (blur {bar.blur_px:.1f} px): refocus and recalibrate")
@@ -182,8 +187,8 @@ def calibrate_from_pin(image: Any, diameter_mm: float, *, u_gauge_mm: float = 0.
         before edges are found.
     label : str
         Free camera label stored in the file.
-    roi : optional
-        Region of interest passed to :func:`profilecheck.imaging.find_edges`.
+    roi : (x_min, y_min, x_max, y_max), optional
+        Search only this box (px, see :func:`profilecheck.imaging.find_edges`).
     lens : Lens, optional
         Lens model from a grid calibration: edge points are undistorted first and the
         perspective enlargement of the cylinder is removed (Z = f * s).
@@ -247,8 +252,8 @@ def measure_pin(image: Any, calibration: Calibration, *, roi=None) -> Measured:
     image : (H, W) array or path
         Same size as the calibration's images (refused otherwise).
     calibration : Calibration
-    roi : optional
-        Passed to :func:`profilecheck.imaging.find_edges`.
+    roi : (x_min, y_min, x_max, y_max), optional
+        Search only this box (px, see :func:`profilecheck.imaging.find_edges`).
 
     Returns
     -------
@@ -298,6 +303,10 @@ def measure_pin(image: Any, calibration: Calibration, *, roi=None) -> Measured:
             if lever > 0.05:
                 note.append(f"scale from a {d_cal:.3f} mm gauge includes the edge offset: "
                             f"extra uncertainty at this size")
+    cal_blur = calibration.blur_px
+    if math.isfinite(cal_blur) and cal_blur > 0 and abs(bar.blur_px / cal_blur - 1.0) > FOCUS_CHANGE:
+        note.append(f"edge blur {bar.blur_px:.2f} px against {cal_blur:.2f} px at calibration: "
+                    f"focus may have changed, and with it the scale; recalibrate")
     if calibration.width_correction_px():
         note.append(f"edge offset corrected ({calibration.width_correction_px():+.3f} px on the width)")
     return Measured(value=float(value), u=K_COVERAGE * combine_u(*std_terms), unit="mm",

@@ -86,7 +86,7 @@ def _result_dict(args: argparse.Namespace, cal: Any, measured: Any, ev: dict[str
     pct = 100.0 * ev["scale_error"]
     band = 100.0 * ev["u_scale"]
     chk = check_limits("scale_error", pct, 0.0, -band, band, unit="%",
-                       source="E_n <= 1 (ISO 13528): reading and pin uncertainty, k = 2")
+                       source="E_n <= 1 (ISO 13528)")
     cal_d = cal.to_dict()
     cal_d["path"] = str(args.cal)
     if cal_sha:

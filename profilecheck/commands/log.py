@@ -7,7 +7,9 @@
 * ``export CSV``: every reading of every record as a readings CSV
   (:data:`profilecheck.report.csv.COLUMNS`).
 
-Exit status 0; 2 when the log is missing or damaged or the record does not exist.
+Opening a log made by an older profilecheck migrates it to the current schema first (one
+transaction; see :mod:`profilecheck.log`). Exit status 0; 2 when the log is missing or
+damaged or the record does not exist.
 """
 
 from __future__ import annotations

@@ -150,7 +150,8 @@ def format_spec_table(spec, *, units: str = "mm", compound_angle_deg: float | No
         lines.append(f"  over best wires    {_len(ow.min_mm, u)}..{_len(ow.max_mm, u)} {u}, "
                      f"incl. lead-angle term {_len(spec.lead_correction_mm, u)}")
     a = spec.compound_angle_deg if compound_angle_deg is None else compound_angle_deg
-    lines.append(f"  blank diameter     {_len(spec.blank_diameter_mm, u)} {u}")
+    what = "blank diameter    " if spec.external else "bore diameter     "
+    lines.append(f"  {what} {_len(spec.blank_diameter_mm, u)} {u}")
     lines.append(f"  radial depth       {_len(spec.radial_depth_mm, u)} {u}; compound at {a:g} "
                  f"deg: travel {_len(spec.infeed(spec.radial_depth_mm, a), u)} {u}")
     for n in spec.notes:

@@ -91,7 +91,7 @@ def _table(d: dict, units: str) -> str:
     text = format_table(d, units=units)
     extra = []
     inf = d.get("infeed")
-    if inf:
+    if inf and "infeed" not in text:
         extra.append(_infeed_line(inf, units))
     hx = d.get("helix") or {}
     if hx.get("applied") and "pitch_diameter_correction_mm" in hx:

@@ -28,6 +28,7 @@ def register(subparsers) -> None:
     p.add_argument("--spec", metavar="DESIGNATION", help="thread designation for thread/tool jobs")
     p.add_argument("--reference", choices=("point", "bar", "line"),
                    help="height reference (default: point)")
+    p.add_argument("--axis", metavar="FILE", help="saved axis file for --reference line")
     g = p.add_mutually_exclusive_group()
     g.add_argument("--pin", metavar="D", help="calibrate: pin diameter, e.g. 6.000mm")
     g.add_argument("--block", metavar="L", help="calibrate: gauge block length")
@@ -52,6 +53,8 @@ def run(args: argparse.Namespace) -> int:
         params["designation"] = args.spec
     if args.reference:
         params["reference"] = args.reference
+    if args.axis:
+        params["axis_path"] = args.axis
     if args.screenshot:
         from ._common import OutputSet
         OutputSet.check_path(args.screenshot, "screenshot")

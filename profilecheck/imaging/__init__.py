@@ -23,6 +23,7 @@ from __future__ import annotations
 from ._coords import rc_to_xy
 from ._edgeset import EdgeSet
 from .edges import find_edges
+from ._response import GammaEstimate, estimate_gamma
 from .fit import CircleFit, LineFit, Regression, fit_circle, fit_line, regress_line
 from .geometry import (angle_between, correct_radius_for_blur, intersect_lines,
                        point_line_distance, sigma_e_px)
@@ -31,7 +32,7 @@ from .silhouette import Silhouette, clipping_fraction, flatten_backlight, linear
 
 __all__ = [
     "load_image", "DEFAULT_MAX_PIXELS", "linearise", "clipping_fraction",
-    "flatten_backlight", "Silhouette",
+    "flatten_backlight", "Silhouette", "estimate_gamma", "GammaEstimate",
     "find_edges", "EdgeSet",
     "fit_line", "LineFit", "fit_circle", "CircleFit", "regress_line", "Regression",
     "intersect_lines", "angle_between", "point_line_distance",

@@ -46,7 +46,7 @@ _PILOT_N = 300
 _NU_POOL = 10.0            # prior degrees of freedom of the pooled noise in each point's std
 _RESID_P = 0.999           # chi-square quantile for the residual test
 _CLIP_WARN = 1e-4
-_NOISE_FLOOR_REL = 1e-3
+_NOISE_FLOOR_REL = 3e-3
 
 
 def _check_roi(roi, shape):
@@ -225,10 +225,10 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
                         "silhouette to measure (check the backlight and exposure)")
         return empty_edgeset(shape, warnings)
 
-    from scipy.ndimage import gaussian_filter
+    import cv2
     from skimage.measure import find_contours
 
-    fs = gaussian_filter(sil.flat, _SEED_SMOOTH_PX, mode="nearest")
+    fs = cv2.GaussianBlur(sil.flat, (0, 0), _SEED_SMOOTH_PX, borderType=cv2.BORDER_REPLICATE)
     seeds = seeds_from_contours(find_contours(fs, 0.5), min_vertices=min_contour_px)
     n_seed = len(seeds.pos)
     if n_seed == 0:
@@ -269,10 +269,11 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         pooled = float(np.median(s2[ok])) / (1.0 - 2.0 / (9.0 * d_med)) ** 3
     else:
         pooled = float(np.median(s2))
-    # floor: a noise-free (rendered) image must not fail on model residuals far below any
-    # camera's noise (0.1 % of the contrast, a quarter of an 8-bit code at full contrast)
-    pooled = max(pooled, (_NOISE_FLOOR_REL * sil.contrast) ** 2)
-    ok &= s2 <= pooled * chi2.ppf(_RESID_P, dof) / dof
+    pooled = max(pooled, 1e-14)
+    # residual test, with a floor so that residuals far below any camera's noise (0.3 % of
+    # the contrast, about half an 8-bit code) never reject a point (rendered, noise-free images)
+    s2_test = max(pooled, (_NOISE_FLOOR_REL * sil.contrast) ** 2)
+    ok &= s2 <= s2_test * chi2.ppf(_RESID_P, dof) / dof
 
     keep = np.flatnonzero(ok)
     n_dropped = n_seed - len(keep)

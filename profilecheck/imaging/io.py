@@ -27,6 +27,10 @@ DEFAULT_MAX_PIXELS = 100_000_000
 # least 2 bits); a PNG whose raw size exceeds this times the file size is not a real image.
 _DEFLATE_MAX_RATIO = 1032
 
+# A generous bound for the TIFF codecs (LZW with 12-bit codes stays below ~2700:1, PackBits
+# 64:1); beyond it the header cannot be honest.
+_TIFF_MAX_RATIO = 5000
+
 # Rec. 601 luma weights (ITU-R BT.601), applied to linear code values as docs/conventions.md
 # says; cv2 returns channels in B, G, R(, A) order.
 _BGR_WEIGHTS = np.array([0.114, 0.587, 0.299])
@@ -98,7 +102,7 @@ def _tiff_size(data: bytes, path: Path) -> tuple[int, int]:
         entry = data[ifd + 2 + 12 * i: ifd + 14 + 12 * i]
         tag, typ, count = struct.unpack(endian + "HHI", entry[:8])
         size = sizes.get(typ)
-        if size is None or tag not in (256, 257, 259, 273, 279):
+        if size is None or tag not in (256, 257, 258, 259, 273, 277, 279):
             continue
         fmt = {1: "B", 2: "H", 4: "I"}[size]
         if size * count <= 4:
@@ -118,6 +122,17 @@ def _tiff_size(data: bytes, path: Path) -> tuple[int, int]:
         for off, cnt in zip(tags[273], tags[279]):
             if off + cnt > len(data):
                 raise _fail(path, "TIFF file is truncated (image data cut short)")
+    spp = tags.get(277, [1])[0]
+    bits = sum(tags.get(258, [8] * spp)[:spp]) or 8
+    raw_bytes = width * height * bits // 8
+    compression = tags.get(259, [1])[0]
+    stored = sum(tags.get(279, [len(data)]))
+    if compression == 1 and raw_bytes > stored:
+        raise _fail(path, f"TIFF header claims {width} x {height} pixels, more than the stored "
+                          f"image data holds (truncated file)")
+    if raw_bytes > _TIFF_MAX_RATIO * len(data) + 4096:
+        raise _fail(path, f"TIFF header claims {width} x {height} pixels, more than a "
+                          f"{len(data)}-byte file can hold (damaged or hostile file)")
     return width, height
 
 

@@ -177,12 +177,15 @@ def straight_runs(xy: np.ndarray, normal: np.ndarray, contour: np.ndarray, *,
         pieces: list[np.ndarray] = []
         for g in groups:
             pieces.extend(_split(p, s, g, split_tol_px, min_length_px))
+        kept: list[np.ndarray] = []
         for g in pieces:
             sg = _unwrapped_s(s, g, closed)
             keep = (sg >= sg[0] + trim_px) & (sg <= sg[-1] - trim_px)
             g = g[keep]
-            if len(g) < 5:
-                continue
+            if len(g) >= 5:
+                kept.append(g)
+        kept = _merge_collinear(p, kept, closed)
+        for g in kept:
             length = float(np.hypot(*(p[g[-1]] - p[g[0]])))
             if length < min_length_px:
                 continue
@@ -193,6 +196,39 @@ def straight_runs(xy: np.ndarray, normal: np.ndarray, contour: np.ndarray, *,
             runs.append(Run(gi, int(cid), xy[gi[0]].copy(), xy[gi[-1]].copy(), length, line))
     runs.sort(key=lambda r: -r.length_px)
     return runs
+
+
+def _merge_collinear(p: np.ndarray, groups: list[np.ndarray], closed: bool,
+                     tol_px: float = 0.35) -> list[np.ndarray]:
+    """Join neighbouring pieces of one contour that lie on one straight line.
+
+    Noise can break a long edge where the local turning test fires by chance; two pieces
+    are joined when every point of both lies within ``tol_px`` of a line through both
+    (checked with a TLS fit of the union).
+    """
+    if len(groups) < 2:
+        return groups
+    groups = sorted(groups, key=lambda g: int(g[0]))
+    out = [groups[0]]
+    for g in groups[1:]:
+        u = np.concatenate([out[-1], g])
+        if _straight(p[u], tol_px):
+            out[-1] = u
+        else:
+            out.append(g)
+    if closed and len(out) > 1:
+        u = np.concatenate([out[-1], out[0]])
+        if _straight(p[u], tol_px):
+            out[0] = u
+            out.pop()
+    return out
+
+
+def _straight(q: np.ndarray, tol_px: float) -> bool:
+    c = q.mean(axis=0)
+    _, _, vt = np.linalg.svd(q - c, full_matrices=False)
+    r = (q - c) @ vt[1]
+    return bool(np.percentile(np.abs(r), 98) < tol_px)
 
 
 def _unwrapped_s(s: np.ndarray, g: np.ndarray, closed: bool) -> np.ndarray:
@@ -290,11 +326,13 @@ def _wedge(ra: Run, rb: Run, lo_deg: float, hi_deg: float) -> Wedge | None:
 
 
 def find_parallel_pairs(runs: list[Run], *, exclude: tuple[Run, ...] = (),
-                        tol_deg: float = 2.0, dark_between: bool = True) -> list[tuple[Run, Run]]:
+                        tol_deg: float = 2.0, dark_between: bool = True,
+                        min_overlap: float = 0.3) -> list[tuple[Run, Run]]:
     """Pairs of runs on parallel lines with opposite outward normals, longest first.
 
     With ``dark_between`` the dark part lies between the two lines (a shank, a bar), i.e.
-    each normal points away from the other line.
+    each normal points away from the other line. The two runs must face each other over at
+    least ``min_overlap`` of the shorter one's length.
     """
     ex = {id(r) for r in exclude}
     cand = [r for r in runs if id(r) not in ex]
@@ -307,6 +345,12 @@ def find_parallel_pairs(runs: list[Run], *, exclude: tuple[Run, ...] = (),
             sep = float((b.line.point - a.line.point) @ a.line.normal)
             if dark_between and sep >= -1.0:
                 continue
+            d = a.line.direction
+            ia = sorted([float(a.start_xy @ d), float(a.end_xy @ d)])
+            ib = sorted([float(b.start_xy @ d), float(b.end_xy @ d)])
+            overlap = min(ia[1], ib[1]) - max(ia[0], ib[0])
+            if overlap < min_overlap * min(ia[1] - ia[0], ib[1] - ib[0]):
+                continue  # side by side, not facing each other: two different parts
             pairs.append((a.length_px + b.length_px, a, b))
     pairs.sort(key=lambda t: -t[0])
     return [(a, b) for _, a, b in pairs]

@@ -55,17 +55,39 @@ class AxisFrame:
         return AxisFrame(self.o if new_o is None else new_o, (float(v[0]), float(v[1])))
 
 
-def initial_axis(xy: np.ndarray) -> AxisFrame:
-    """Principal direction of the edge points: the long direction of the threaded part.
-
-    Teeth only add a band across it; partial teeth at the ends tilt it by a fraction of a
-    degree, which the caller then removes from the fitted crest and root levels.
-    """
-    xy = np.asarray(xy, float)
+def _principal(xy: np.ndarray) -> tuple[np.ndarray, np.ndarray, float, float]:
     c = xy.mean(axis=0)
     d = xy - c
-    w, v = np.linalg.eigh(d.T @ d)
-    u = v[:, 1]
+    w, v = np.linalg.eigh(d.T @ d / len(d))
+    return c, v[:, 1], float(max(w[1], 0.0)), float(max(w[0], 0.0))
+
+
+def initial_axis(xy: np.ndarray, contour: np.ndarray | None = None) -> AxisFrame:
+    """First estimate of the axis: principal direction of the longest elongated contour.
+
+    One edge of a thread is a long thin band of points whose principal direction is the
+    axis (teeth only add a band across it); when the part runs off both ends of the
+    picture each edge is its own contour. A whole part in view is one closed contour whose
+    principal direction is its length. Partial teeth at the ends tilt the estimate by a
+    fraction of a degree, which the caller removes from the fitted crest and root levels.
+    """
+    xy = np.asarray(xy, float)
+    if contour is None:
+        contour = np.zeros(len(xy), dtype=int)
+    best = None
+    for cid in np.unique(contour):
+        p = xy[contour == cid]
+        if len(p) < 20:
+            continue
+        c, u, l1, l2 = _principal(p)
+        if l1 < 9.0 * max(l2, 1e-12):  # elongation sqrt(l1/l2) < 3
+            continue
+        extent = float(np.ptp(p @ u))
+        if best is None or extent > best[0]:
+            best = (extent, u)
+    c, u, _, _ = _principal(xy)
+    if best is not None:
+        u = best[1]
     if u[0] < 0 or (abs(u[0]) < 1e-12 and u[1] < 0):
         u = -u
     return AxisFrame((float(c[0]), float(c[1])), (float(u[0]), float(u[1])))

@@ -40,6 +40,9 @@ MIN_FULL_TEETH = 3
 #: ``shift(x_mm, y_mm, side) -> axial shift (mm)`` of a flank point *outward from its tooth*
 #: in the image; the analysis moves each flank point back by it (helix correction).
 FlankShift = Callable[[np.ndarray, np.ndarray, str], np.ndarray]
+#: ``arc_shift(x_mm, y_mm, slope) -> dx (mm)`` to add to points of a rounded crest or root
+#: whose local profile slope d(y)/dx is ``slope`` (helix correction of arcs).
+ArcShift = Callable[[np.ndarray, np.ndarray, np.ndarray], np.ndarray]
 
 
 @dataclass(frozen=True)
@@ -172,6 +175,7 @@ def find_crossings(x: np.ndarray, y: np.ndarray, level: float,
 def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float = 0.0,
                  root_drop_mm: float = 0.0, radiused_crest: bool = False,
                  radiused_root: bool = False, flank_shift: FlankShift | None = None,
+                 arc_shift: ArcShift | None = None,
                  min_full_teeth: int = MIN_FULL_TEETH) -> LimbProfile:
     """Segment one thread edge into teeth and fit flanks, crests and roots.
 
@@ -191,6 +195,9 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
     flank_shift : callable or None
         Helix / line-of-sight model: the image position of each flank point is moved back
         toward its tooth by ``flank_shift(x, y, side)`` before the line fit.
+    arc_shift : callable or None
+        Same model for points of rounded crests and roots (first order, from the local
+        slope of a first circle fit).
     min_full_teeth : int
         Refuse (QualityError) with fewer complete teeth.
 
@@ -313,7 +320,7 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         pitch, std_pitch, per_tooth, rms, aL, aR, xl, xr = _fit_pitch(flanks, mid, bad_teeth)
 
     crests, roots = _fit_flats(x, y, flanks, levels_arr, cross, sigma_e_mm, m_crest, m_root,
-                               radiused_crest, radiused_root, mid, pitch)
+                               radiused_crest, radiused_root, mid, pitch, arc_shift)
     # Chipped crest: crest level far below the others.
     if len(crests) >= 4:
         lv = np.array([c.level for c in crests])
@@ -417,7 +424,7 @@ def _fit_pitch(flanks: list[Flank], y_ref: float, exclude: set[int]):
 
 
 def _fit_flats(x, y, flanks, levels, cross, sigma_e, m_crest, m_root, radiused_crest,
-               radiused_root, mid, pitch):
+               radiused_root, mid, pitch, arc_shift=None):
     left = {f.index: f for f in flanks if f.side == "left"}
     right = {f.index: f for f in flanks if f.side == "right"}
     crests, roots = [], []
@@ -428,14 +435,14 @@ def _fit_flats(x, y, flanks, levels, cross, sigma_e, m_crest, m_root, radiused_c
     for i in sorted(left):
         if i in right:
             crests.append(_one_flat("crest", i, x, y, left[i], right[i], hi_all, sigma_e,
-                                    m_crest, radiused_crest))
+                                    m_crest, radiused_crest, arc_shift))
         if i - 1 in right:
             roots.append(_one_flat("root", i - 1, x, y, right[i - 1], left[i], lo_all, sigma_e,
-                                   m_root, radiused_root))
+                                   m_root, radiused_root, arc_shift))
     return [c for c in crests if c is not None], [r for r in roots if r is not None]
 
 
-def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused):
+def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused, arc_shift=None):
     """Flat between flank lines ``fa`` (at smaller x) and ``fb``; crest is above, root below."""
     sgn = 1.0 if kind == "crest" else -1.0
     xa, xb = float(fa.line.x_at(level0)), float(fb.line.x_at(level0))
@@ -452,7 +459,14 @@ def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused):
         sel = (x > lo_x) & (x < hi_x) & (sgn * (y - edge) > -sigma_e)
         if sel.sum() < 6:
             return None
-        centre, r, std_r, _ = fit_circle_lsq(np.column_stack([x[sel], y[sel]]))
+        pts = np.column_stack([x[sel], y[sel]])
+        centre, r, std_r, _ = fit_circle_lsq(pts)
+        if arc_shift is not None and 0 < r < 10 * (hi_x - lo_x + 1e-9):
+            d = pts - centre
+            slope = -d[:, 0] / np.where(np.abs(d[:, 1]) > 1e-12, d[:, 1], 1e-12)
+            pts = pts + np.column_stack([arc_shift(pts[:, 0], pts[:, 1], slope),
+                                         np.zeros(len(pts))])
+            centre, r, std_r, _ = fit_circle_lsq(pts)
         if not (0 < r < 10 * (hi_x - lo_x + 1e-9)):
             return None
         r_corr = r + sigma_e ** 2 / (2 * r)  # blur bias of a curved edge, vision-notes 1.2

@@ -8,7 +8,14 @@ Budget per value (GUM 5.1.2, independent terms in quadrature, then U = 2 u_c):
   uncertainty acts on widths and diameters with the geometric factor of each quantity
   (diameters 2, flats 2 (1 - sin theta)/cos theta, pitch diameter and wires 2/sin theta,
   radii 1; pitch, angles and depth are immune: same-polarity);
-* helix model: 10 % of the correction applied, rectangular.
+* helix model: 10 % of the correction applied, rectangular (50 % for the first-order
+  correction of rounded crests and roots);
+* edge model: 0.02 px per edge position (standard), the residual that subpixel edge
+  locators reach at best on straight edges (vision-notes section 0: 0.01-0.05 px), on
+  every length resting on two or more edge positions;
+* single-gauge scale (``scale_absorbs_offset``): the scale holds 2b/D_cal, so a length L
+  with edge-offset factor g errs by b (g - 2 L / D_cal); with |b| <= 0.5 px (the bound the
+  calibration notes state) that is a rectangular term (vision-notes section 4).
 """
 
 from __future__ import annotations
@@ -25,6 +32,7 @@ from .wires import lead_term_mm, virtual_over_wire
 __all__ = ["assemble"]
 
 _MODEL = 0.1 / math.sqrt(3.0)
+_ARC_MODEL = 0.5 / math.sqrt(3.0)
 
 
 def _m(value: float, std: float, unit: str, n: int, note: str = "", residual: float = float("nan")
@@ -70,13 +78,25 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
     sb = 0.5 * cal.u_edge_offset_px * cal.mm_per_px        # edge offset, standard, mm
     notes: list[str] = []
     meas: dict[str, Measured] = {}
+    d_cal = float((cal.gauge or {}).get("size_mm") or 0.0) if cal.scale_absorbs_offset else 0.0
+
+    def absorbed(length: float, g: float) -> float:
+        if d_cal <= 0:
+            return 0.0
+        return 0.5 * cal.mm_per_px * abs(g - 2.0 * length / d_cal) / math.sqrt(3.0)
+
+    floor = 0.02 * math.sqrt(2.0) * cal.mm_per_px  # two edge positions, vision-notes 0
+
+    if d_cal > 0:
+        notes.append(f"scale from one {d_cal:g} mm gauge holds the edge offset: an uncertainty "
+                     "term for sizes unlike the gauge is included")
 
     # Pitch: inverse-variance mean of the edges.
     w = np.array([1.0 / max(l.std_pitch, 1e-12) ** 2 for l in limbs])
     p = float(np.sum(w * [l.pitch for l in limbs]) / w.sum())
     sp = math.sqrt(1.0 / w.sum())
     n_fl = sum(len(l.flanks) for l in limbs)
-    meas["pitch"] = _m(p, math.hypot(sp, p * rel), "mm", n_fl,
+    meas["pitch"] = _m(p, math.sqrt(sp ** 2 + (p * rel) ** 2 + absorbed(p, 0.0) ** 2), "mm", n_fl,
                        residual=float(np.mean([l.pitch_residual_rms for l in limbs])))
 
     ang = {}
@@ -97,12 +117,19 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
         flat = _pool_flats(limbs, kind, "width")
         if flat is not None:
             v, s, n, npts = flat
-            meas[f"{kind}_flat"] = _m(v, math.sqrt(s ** 2 + (g_flat * sb) ** 2 + (v * rel) ** 2),
-                                      "mm", npts)
+            raw_flat = _pool_flats(rlimbs, kind, "width")
+            corr = v - raw_flat[0] if raw_flat else 0.0
+            meas[f"{kind}_flat"] = _m(v, math.sqrt(s ** 2 + (g_flat * sb) ** 2 + (v * rel) ** 2
+                                                + absorbed(v, g_flat) ** 2 + floor ** 2
+                                                + (_MODEL * corr) ** 2), "mm", npts)
         rad = _pool_flats(limbs, kind, "radius")
         if rad is not None:
             v, s, n, npts = rad
-            meas[f"{kind}_radius"] = _m(v, math.sqrt(s ** 2 + sb ** 2 + (v * rel) ** 2), "mm",
+            raw_rad = _pool_flats(rlimbs, kind, "radius")
+            corr = v - raw_rad[0] if raw_rad else 0.0
+            meas[f"{kind}_radius"] = _m(v, math.sqrt(s ** 2 + sb ** 2 + (v * rel) ** 2
+                                                  + absorbed(v, 1.0) ** 2 + floor ** 2
+                                                  + (_ARC_MODEL * corr) ** 2), "mm",
                                         npts, note="blur bias sigma_e^2/(2R) corrected")
 
     depths, dstd = [], []
@@ -115,7 +142,8 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
     if depths:
         d = float(np.mean(depths))
         sd = math.sqrt(float(np.sum(np.square(dstd)))) / len(depths)
-        meas["depth"] = _m(d, math.hypot(sd, d * rel), "mm",
+        meas["depth"] = _m(d, math.sqrt(sd ** 2 + (d * rel) ** 2 + absorbed(d, 0.0) ** 2
+                                        + floor ** 2), "mm",
                            sum(len(l.crests) + len(l.roots) for l in limbs))
 
     if both:
@@ -133,7 +161,8 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
             if math.isfinite(ct) and math.isfinite(cb):
                 dd = ct + cb
                 dd = rim(dd) if rim else dd
-                meas[key] = _m(dd, math.sqrt(sct ** 2 + scb ** 2 + (2 * sb) ** 2 + (dd * rel) ** 2),
+                meas[key] = _m(dd, math.sqrt(sct ** 2 + scb ** 2 + (2 * sb) ** 2 + (dd * rel) ** 2
+                                             + absorbed(dd, 2.0) ** 2 + floor ** 2),
                                "mm", len(t.crests if kind == "crest" else t.roots)
                                + len(bm.crests if kind == "crest" else bm.roots))
         pd = t.pitch_line_y + bm.pitch_line_y
@@ -144,7 +173,8 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
         g_pd = 2.0 / math.sin(theta)
         meas["pitch_diameter"] = _m(pd, math.sqrt(
             t.std_pitch_line_y ** 2 + bm.std_pitch_line_y ** 2 + (g_pd * sb) ** 2
-            + (pd * rel) ** 2 + (_MODEL * corr) ** 2), "mm", t.n_points + bm.n_points,
+            + (pd * rel) ** 2 + (_MODEL * corr) ** 2 + absorbed(pd, g_pd) ** 2 + floor ** 2), "mm",
+            t.n_points + bm.n_points,
             note=f"axial section; helix correction {corr * 1000:+.1f} um applied")
         # Virtual three-wire reading over best-size wires.
         from ..standards.wires import best_wire
@@ -156,7 +186,8 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
         psi = math.atan(lead / (math.pi * pd))
         m_real = m_planar + lead_term_mm(wire, math.radians(half_deg), psi)
         meas["over_wire"] = _m(m_real, math.sqrt(s_m ** 2 + (g_pd * sb) ** 2 + (m_real * rel) ** 2
-                                                 + (_MODEL * corr) ** 2), "mm", n_w,
+                                                 + (_MODEL * corr) ** 2 + floor ** 2
+                                                 + absorbed(m_real, g_pd) ** 2), "mm", n_w,
                                note=f"virtual reading over {wire:.4f} mm wires, lead-angle term "
                                     "of ASME B1.2 / H28 (exact form) included")
         if not ok:

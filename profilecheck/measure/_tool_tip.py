@@ -231,19 +231,34 @@ def _meet(a, b) -> np.ndarray:
     return np.linalg.solve(m, np.array([a.normal @ a.point, b.normal @ b.point]))
 
 
+def _boundary_depth(t: np.ndarray, half_angle_rad: float, flat_depth: float,
+                    radius: float) -> np.ndarray:
+    """Depth (behind the virtual apex) of the tool's outline at lateral offsets ``t`` px: a
+    wedge of half-angle beta truncated by a flat at ``flat_depth`` or rounded by an arc of
+    ``radius`` tangent to both flanks."""
+    tb = math.tan(half_angle_rad)
+    z = np.abs(t) / tb
+    if radius > 0:
+        c = radius / math.sin(half_angle_rad)
+        on_arc = np.abs(t) < radius * math.cos(half_angle_rad)
+        z = np.where(on_arc, c - np.sqrt(np.maximum(radius ** 2 - t ** 2, 0.0)), z)
+    return np.maximum(z, flat_depth)
+
+
 def _coverage(lat: np.ndarray, depth: np.ndarray, half_angle_rad: float, flat_depth: float,
-              sigma: float) -> np.ndarray:
-    """Blurred coverage (0..1) of a truncated wedge at points (lat, depth) px.
+              sigma: float, radius: float = 0.0) -> np.ndarray:
+    """Blurred coverage (0..1) of a truncated or rounded wedge at points (lat, depth) px.
 
     Frame: origin at the virtual apex, depth measured into the tool along the bisector,
-    lat across it; the wedge is depth >= |lat| / tan(beta) and depth >= flat_depth. Gaussian
-    blur sigma: exact integral along the depth, numerical (641 samples) across.
+    lat across it; the tool is depth >= :func:`_boundary_depth` (lat). Gaussian blur sigma:
+    exact integral along the depth, numerical (641 samples) across.
     """
-    t = np.linspace(-8.0, 8.0, 641)[:, None] * sigma + np.asarray(lat, float)[None, :]
+    lat = np.asarray(lat, float)
+    t = np.linspace(-8.0, 8.0, 641)[:, None] * sigma + lat[None, :]
     dt = 16.0 * sigma / 640
-    z0 = np.maximum(np.abs(t) / math.tan(half_angle_rad), flat_depth)
+    z0 = _boundary_depth(t, half_angle_rad, flat_depth, radius)
     frac = 0.5 * special.erfc((z0 - np.asarray(depth, float)[None, :]) / (math.sqrt(2) * sigma))
-    w = np.exp(-0.5 * ((t - np.asarray(lat, float)[None, :]) / sigma) ** 2) / (math.sqrt(2 * math.pi) * sigma)
+    w = np.exp(-0.5 * ((t - lat[None, :]) / sigma) ** 2) / (math.sqrt(2 * math.pi) * sigma)
     return (frac * w).sum(axis=0) * dt
 
 
@@ -284,23 +299,42 @@ def _small_tip(pix, apex, bisector, beta, sigma_e, n_central) -> TipForm:
     if len(val) < 20:
         raise QualityError("the tool's point is not clear in the image: too few pixels at the tip")
 
-    def model(fd: float) -> np.ndarray:
-        return bright - (bright - dark) * _coverage(lat, depth, beta, fd, sigma_e)
+    def model(fd: float, r: float = 0.0) -> np.ndarray:
+        return bright - (bright - dark) * _coverage(lat, depth, beta, fd, sigma_e, r)
 
-    def cost(fd: float) -> float:
-        return float(np.sum((val - model(fd)) ** 2))
+    def fit(kind: str):
+        if kind == "flat":
+            f = lambda v: float(np.sum((val - model(v)) ** 2))  # noqa: E731
+            hi = reach
+        else:
+            f = lambda v: float(np.sum((val - model(0.0, v)) ** 2))  # noqa: E731
+            hi = reach * math.sin(beta) / (1 - math.sin(beta))
+        res = minimize_scalar(f, bounds=(0.0, hi), method="bounded", options={"xatol": 1e-4})
+        v = float(res.x) if res.fun < f(0.0) else 0.0
+        return v, f(v)
 
-    res = minimize_scalar(cost, bounds=(0.0, reach), method="bounded", options={"xatol": 1e-4})
-    fd = float(res.x) if res.fun < cost(0.0) else 0.0
-    resid = val - model(fd)
-    s_i = float(np.sqrt(np.mean(resid ** 2)))
-    hstep = 1e-3
-    J = (model(fd + hstep) - model(max(fd - hstep, 0.0))) / (fd + hstep - max(fd - hstep, 0.0))
+    fd, cost_flat = fit("flat")
+    r, cost_round = fit("radius")
+    n = len(val)
+    # the radius model must explain the pixels clearly better (F-like ratio; common
+    # practice, no source) before a nose radius is reported
+    if r > 0.5 and cost_round < 0.9 * cost_flat:
+        kind, size = "radius", r
+        m0 = model(0.0, r)
+        J = (model(0.0, r + 1e-3) - m0) / 1e-3
+        cost = cost_round
+    else:
+        kind, size = "small", 2 * tb * fd
+        m0 = model(fd)
+        J = (model(fd + 1e-3) - m0) / 1e-3 / (2 * tb)  # per px of flat width
+        cost = cost_flat
+    s_i = math.sqrt(cost / max(n - 1, 1))
     info = float(np.sum(J ** 2))
-    std_fd = s_i / math.sqrt(info) if info > 1e-18 else sigma_e / 2
+    std_fit = s_i / math.sqrt(info) if info > 1e-18 else sigma_e
     # model term: the blur estimate taken good to 10 % (common practice, no source)
     d_sig = abs(recession_px(beta, sigma_e * 1.1, 2 * tb * fd) - recession_px(beta, sigma_e, 2 * tb * fd))
-    std = 2 * tb * math.hypot(std_fd, 0.5 * d_sig)
-    return TipForm("small", 2 * tb * fd, std, int(len(val)), math.nan, math.nan,
-                   note=f"tip too small to fit a line or arc ({n_central} edge points clear of "
-                        "the corners): flat fitted with a blurred-wedge model to the tip's pixels")
+    std = math.hypot(std_fit, tb * d_sig)
+    what = "nose radius" if kind == "radius" else "flat"
+    return TipForm(kind, size, std, n, math.nan, math.nan,
+                   note=f"tip too small to fit from edge points ({n_central} clear of the "
+                        f"corners): {what} fitted with a blurred-wedge model to the tip's pixels")

@@ -122,12 +122,12 @@ def _axis_from_bar(runs, tool_apex):
         if abs(a.line.direction[1]) > math.sin(math.radians(30)):
             continue
         sep = abs(float((b.line.point - a.line.point) @ a.line.normal))
-        da = abs(float(a.line.distance(tool_apex[None, :])[0]))
-        db = abs(float(b.line.distance(tool_apex[None, :])[0]))
+        da = -float(a.line.distance(tool_apex[None, :])[0])  # + inside the pair
+        db = -float(b.line.distance(tool_apex[None, :])[0])
         if min(da, db) < 0.2 * sep:
-            continue  # the tip lies on one of the lines: that is the tool's own edge
-        score = a.length_px + b.length_px
-        if best is None or score > best[0]:
+            continue  # outside the pair, or on one of its lines (the tool's own edge)
+        score = abs(da - db) / sep  # 0 when the tip is on the midline
+        if best is None or score < best[0]:
             best = (score, a, b)
     if best is None:
         return None
@@ -142,7 +142,7 @@ def _axis_from_bar(runs, tool_apex):
     std_off = 0.5 * math.hypot(float(a.line.fit.std_position_at(pa[None])[0]),
                                float(b.line.fit.std_position_at(pb[None])[0]))
     std_ang = 0.5 * math.hypot(a.line.std_angle_rad, b.line.std_angle_rad)
-    return (mid, d, std_off, std_ang), {id(a), id(b)}
+    return (mid, d, std_off, std_ang), {id(a), id(b)}, best[0]
 
 
 def _tool_corners(runs, exclude: set, up_hint: np.ndarray):
@@ -267,16 +267,17 @@ def measure_height(image, calibration, *, reference: str = "point", axis=None,
         raise MeasurementError("no tool tip found: no top edge meeting a front edge at a point "
                                "(is the tool's tip in view and its top face edge-on?)")
     if reference == "bar":
+        # the tool's tip lies near the bar's midline; a bar's own end corner lies on one of
+        # its edges, so the combination with the tip nearest the midline is the right one
         best = None
         for w, top, front in corners:
             found = _axis_from_bar([r for r in runs if r is not top and r is not front], w.apex)
-            if found is not None:
+            if found is not None and (best is None or found[2] < best[3][2]):
                 best = (w, top, front, found)
-                break
         if best is None:
             raise MeasurementError("no bar found: no pair of parallel silhouette edges across "
                                    "the image with the tool's tip between them")
-        w, top, front, (axis_geom, _ex) = best
+        w, top, front, (axis_geom, _ex, _score) = best
     else:
         # the tip nearest the axis
         p0, d0 = axis_geom[0], axis_geom[1]
@@ -297,7 +298,12 @@ def measure_height(image, calibration, *, reference: str = "point", axis=None,
     lever = float(rel @ direction)
     var_tip = float(up @ w.apex_cov @ up) if np.all(np.isfinite(w.apex_cov)) else 0.0
     std_axis = math.hypot(std_off, lever * std_ang)
-    std_b = (calibration.u_edge_offset_px / 2) * abs(float(shift_per_b @ up))
+    ub = calibration.u_edge_offset_px / 2
+    if calibration.scale_absorbs_offset:
+        # a one-gauge scale does not find the edge offset b of a single edge: bound b by
+        # 0.5 px (the calibration's 1 px on a width, split over two edges), rectangular
+        ub = math.hypot(ub, 0.5 / math.sqrt(3))
+    std_b = ub * abs(float(shift_per_b @ up))
     s, us = calibration.mm_per_px, calibration.u_mm_per_px / 2
     std_px = math.sqrt(var_tip + std_axis ** 2 + std_b ** 2)
     off_mm = off_px * s

@@ -32,7 +32,7 @@ import math
 
 import numpy as np
 
-__all__ = ["lead_angle_rad", "flank_shift_mm", "flank_shift_approx_mm",
+__all__ = ["lead_angle_rad", "flank_shift_mm", "flank_shift_approx_mm", "profile_shift_mm",
            "apparent_half_angle_rad", "pitch_diameter_error_mm"]
 
 
@@ -145,3 +145,24 @@ def pitch_diameter_error_mm(d2_mm: float, lead_angle: float, half_angle_rad: flo
     (standards-notes section 9 for gamma = 0; vision-notes section 5 with gamma signed as in
     :func:`flank_shift_approx_mm`). M6x1: +28 um; M10x1.5: +38 um."""
     return 0.5 * d2_mm * (math.tan(lead_angle) + tan_gamma) ** 2 / math.tan(half_angle_rad) ** 2
+
+
+def profile_shift_mm(radius_mm: np.ndarray | float, slope: np.ndarray | float, lead_mm: float, *,
+                     tan_gamma: np.ndarray | float = 0.0, right_hand: bool = True,
+                     top_edge: bool = True) -> np.ndarray:
+    """First-order axial correction of any outline point with local profile slope
+    ``slope = d(radius)/dx`` (crest and root arcs as well as flanks).
+
+    Returns ``dx`` to *add* to the seen axial position to reach the axial section:
+    ``dx = a_eff^2 slope / (2 Y)`` with ``a_eff = h L / (2 pi) + s t Y`` (module Notes;
+    for a straight flank ``slope = +/-1/tan(theta)`` this is the second-order flank shift).
+    Near an arc apex the slope, and so the correction, goes to zero.
+    """
+    y = np.asarray(radius_mm, dtype=float)
+    if np.any(~(y > 0)):
+        raise ValueError("radius_mm must be > 0")
+    if not (lead_mm >= 0 and math.isfinite(lead_mm)):
+        raise ValueError(f"lead_mm must be >= 0, got {lead_mm!r}")
+    a = (1.0 if right_hand else -1.0) * lead_mm / (2 * math.pi)
+    a_eff = a + (1.0 if top_edge else -1.0) * np.asarray(tan_gamma, dtype=float) * y
+    return a_eff ** 2 * np.asarray(slope, dtype=float) / (2 * y)

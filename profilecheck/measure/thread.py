@@ -39,7 +39,7 @@ from ._thread_axis import AxisFrame, initial_axis, split_edges
 from ._thread_overlays import build_overlays
 from ._thread_result import ThreadResult
 from ._thread_verdict import remaining_infeed, thread_checks
-from .helix import flank_shift_mm, lead_angle_rad
+from .helix import flank_shift_mm, lead_angle_rad, profile_shift_mm
 from .wires import lead_term_mm, virtual_over_wire
 
 __all__ = ["measure_thread", "ThreadResult"]
@@ -83,6 +83,9 @@ def _resolve_spec(spec: Any) -> Any:
 def _edge_quality(edges: Any, cal: Calibration, warnings: list[str]) -> float:
     """Refuse low contrast or gross blur; return the effective blur sigma_e in px."""
     n = len(np.asarray(edges.xy))
+    low = [w for w in getattr(edges, "warnings", ()) if "contrast" in str(w)]
+    if n < 50 and low:
+        raise QualityError(f"edge contrast is too low: {low[0]}")
     if n < 50:
         raise MeasurementError("no thread outline found: check the backlight, the focus and "
                                "that the part is in view")
@@ -102,19 +105,23 @@ def _edge_quality(edges: Any, cal: Calibration, warnings: list[str]) -> float:
     return math.sqrt(blur ** 2 + 1.0 / 12.0)  # pixel integration, vision-notes section 2
 
 
-def _out_of_frame(xy: np.ndarray, mask: np.ndarray, frame: AxisFrame, shape, warnings) -> None:
-    """Refuse when an edge runs into the picture border across the axis."""
+def _out_of_frame(xy: np.ndarray, frame: AxisFrame, shape) -> None:
+    """Refuse when the outline meets a picture border that runs along the axis.
+
+    Border crossings at the axial ends are normal (the part runs on out of view); edge
+    points on a border along the axis mean the crests or roots are cut off.
+    """
     h, w = shape[:2]
-    p = xy[mask]
-    near = (p[:, 0] < 2.5) | (p[:, 0] > w - 3.5) | (p[:, 1] < 2.5) | (p[:, 1] > h - 3.5)
+    along_x = abs(frame.u[0]) >= abs(frame.u[1])
+    c = xy[:, 1] if along_x else xy[:, 0]
+    n = h if along_x else w
+    near = (c < 2.5) | (c > n - 3.5)
     if near.sum() < 5:
         return
-    # Border crossings at the axial ends are normal (the part runs on); a border along
-    # the axis that the teeth touch is not.
-    s = frame.to_axis(p[near])[:, 0]
-    s_all = frame.to_axis(p)[:, 0]
-    inner = (s > np.quantile(s_all, 0.05)) & (s < np.quantile(s_all, 0.95))
-    if inner.sum() >= 5:
+    s_all = frame.to_axis(xy)[:, 0]
+    s = s_all[near]
+    lo, hi = np.quantile(s_all, 0.05), np.quantile(s_all, 0.95)
+    if np.sum((s > lo) & (s < hi)) >= 5:
         raise QualityError("the thread runs out of the picture across its teeth: move the "
                            "part so its whole outline (crests and roots) is in view")
 
@@ -206,12 +213,12 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
     b_px = -0.5 * calibration.width_correction_px()
     xy = xy_raw - b_px * normal  # each edge point back onto the true boundary
 
-    frame = initial_axis(xy)
+    frame = initial_axis(xy, contour)
     form = _form(spec)
     top_m = bot_m = None
     r_axis = 0.0
     raw: dict[str, tp.LimbProfile] = {}
-    for _ in range(4):
+    for _ in range(3):
         sr = frame.to_axis(xy) * scale
         nsr = np.column_stack([normal @ np.asarray(frame.u), normal @ np.asarray(frame.n_up)])
         top_m, bot_m = split_edges(sr, nsr, contour)
@@ -231,13 +238,13 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
             r_axis += 0.5 * (raw["top"].pitch_line_y - raw["bottom"].pitch_line_y)
         o = frame.to_image(np.array([[0.0, r_axis / scale]]))[0]
         frame = frame.rotated(math.atan(slope), (float(o[0]), float(o[1])))
-        if abs(slope) < 2e-6:
+        if abs(slope) < 2e-5:  # 0.001 deg
             break
     # Final frame: axis through the origin; redo the raw fits there.
+    _out_of_frame(np.asarray(edges.xy, dtype=float), frame, img.shape)
     sr = frame.to_axis(xy) * scale
     for name, m in (("top", top_m), ("bottom", bot_m)):
         if m is not None:
-            _out_of_frame(xy_raw, m, frame, img.shape, warnings)
             raw[name] = tp.analyse_limb(_limb_xy(sr, m, name == "top", 0.0), sigma_e_mm=sigma_e,
                                         **_drops(form, raw[name]))
     both = len(raw) == 2
@@ -325,22 +332,27 @@ def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, wa
                  for s in ("left", "right") if limb0.side(s)}
         off = 0.0 if both else (0.5 * d2 - limb0.pitch_line_y)
 
-        def shift(x, y, side, _top=top, _off=off, _theta=theta):
+        def tan_gamma(x, y, _top=top):
+            if lens is None:
+                return 0.0
+            p = frame.to_image(np.column_stack([x, y if _top else -y]) / cal.mm_per_px)
+            u = np.asarray(frame.u)
+            return ((p[:, 0] - lens.cx_px) / lens.fx_px * u[0]
+                    + (p[:, 1] - lens.cy_px) / lens.fy_px * u[1])
+
+        def shift(x, y, side, _top=top, _off=off, _theta=theta, _tg=tan_gamma):
             rad = np.maximum(y + _off, 1e-6)
-            tg = 0.0
-            if lens is not None:
-                s_px = x / cal.mm_per_px
-                r_px = (y if _top else -y) / cal.mm_per_px
-                p = frame.to_image(np.column_stack([s_px, r_px]))
-                u = np.asarray(frame.u)
-                tg = ((p[:, 0] - lens.cx_px) / lens.fx_px * u[0]
-                      + (p[:, 1] - lens.cy_px) / lens.fy_px * u[1])
             return flank_shift_mm(rad, lead, _theta.get(side, math.radians(30)), side=side,
-                                  tan_gamma=tg, right_hand=right_hand, top_edge=_top)
+                                  tan_gamma=_tg(x, y), right_hand=right_hand, top_edge=_top)
+
+        def arc_shift(x, y, slope, _top=top, _off=off, _tg=tan_gamma):
+            rad = np.maximum(y + _off, 1e-6)
+            return profile_shift_mm(rad, slope, lead, tan_gamma=_tg(x, y),
+                                    right_hand=right_hand, top_edge=_top)
 
         xy_l = _limb_xy(sr, m, top, 0.0)
         fitted[name] = tp.analyse_limb(xy_l, sigma_e_mm=sigma_e, flank_shift=shift,
-                                       **_drops(form, limb0))
+                                       arc_shift=arc_shift, **_drops(form, limb0))
     psi = lead_angle_rad(lead, d2)
     helix = {"applied": True, "model": model, "lead_mm": lead, "right_hand": right_hand,
              "diameter_mm": d2, "diameter_source": d_src,

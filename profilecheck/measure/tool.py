@@ -7,8 +7,9 @@ internal (boring-bar) tools are the same geometry and no symmetry is assumed.
 Frame and signs (``docs/conventions.md``): image px (x, y) = (col, row); angles reported in
 degrees. Half-angles ``half_left`` / ``half_right`` are measured from the tool's axis with the
 point turned up, 'left' being the flank on the image left; ``bisector_tilt`` is the angle of
-the point's bisector from the tool's axis, + toward the right flank (so
-``bisector_tilt = (half_right - half_left) / 2``).
+the point's bisector (toward the tip) from the tool's axis, + when the point leans to the
+right with the point up (clockwise on screen), so ``bisector_tilt = (half_left -
+half_right) / 2``.
 
 The tool's axis is taken from the shank sides when both (or one) are in view. When the
 shank is seen only with its sides square to the point (a boring bar whose point stands out
@@ -264,8 +265,8 @@ def measure_tool(image, calibration, *, spec=None, internal: bool = False,
         meas["half_right"] = Measured(_deg(pr), 2 * _deg(math.hypot(sr, std_axis)), "deg",
                                       rr.line.n, rr.line.rms_px, note=f"from the {reference}")
         s_tilt = math.sqrt((sl ** 2 + sr ** 2) / 4 + std_axis ** 2)
-        meas["bisector_tilt"] = Measured(_deg((pl + pr) / 2), 2 * _deg(s_tilt), "deg", n_fl,
-                                         res, note=f"from the {reference}, + toward the right flank")
+        meas["bisector_tilt"] = Measured(_deg(-(pl + pr) / 2), 2 * _deg(s_tilt), "deg", n_fl,
+                                         res, note=f"from the {reference}, + point leaning right")
     tip = fit_tip(_tip_points(edges, xy, wedge), rl.line, rr.line, wedge.apex,
                   wedge.bisector, sigma_e, _tip_pixels(img, calibration, edges, xy, wedge))
     beta = included / 2
@@ -302,6 +303,14 @@ def _tip_measured(tip: TipForm, beta: float, cal) -> tuple[str, Measured]:
     """Tip size in mm with its budget: fit, scale (relative), edge offset (vision-notes 4)."""
     s, us = cal.mm_per_px, cal.u_mm_per_px / 2  # u_mm_per_px is k = 2
     b, ub = cal.edge_offset_px, cal.u_edge_offset_px / 2
+    if cal.scale_absorbs_offset:
+        # a one-gauge scale holds the edge offset for the gauge's size only: a small tip
+        # carries up to 1 px x (1 - size / gauge) more (calibration notes; rectangular
+        # bound -> a / sqrt(3), GUM 4.3.7)
+        size_px = max(tip.size_px, 0.0)
+        gauge_px = float(cal.gauge.get("size_mm", 0.0) or 0.0) / s
+        frac = (1 - size_px / gauge_px) if gauge_px > size_px else 0.0
+        ub = math.hypot(ub, 0.5 * frac / math.sqrt(3))
     if tip.kind == "radius":
         # an outward edge bias b makes a convex nose read b larger
         r_px = tip.size_px - b
@@ -323,14 +332,22 @@ def _nan(v: float) -> float:
     return float(v) if math.isfinite(v) else float("nan")
 
 
-def _limits_of(tip_req) -> tuple[str, float | None, float | None]:
-    for kind in ("flat", "radius"):
+def _limits_of(tip_req, measured: str) -> tuple[str, float | None, float | None]:
+    """(kind, min, max) of the tip limits: the measured kind's if the spec gives them, else
+    the spec's preferred kind (checked through the flat/radius equivalence)."""
+    def get(kind):
         lo = getattr(tip_req, f"{kind}_min_mm", None)
         hi = getattr(tip_req, f"{kind}_max_mm", None)
         if lo is None and hi is None and isinstance(tip_req, dict):
             lo, hi = tip_req.get(f"{kind}_min_mm"), tip_req.get(f"{kind}_max_mm")
-        if lo is not None or hi is not None:
-            return kind, lo, hi
+        return lo, hi
+
+    order = [measured, getattr(tip_req, "kind", None) or "", "flat", "radius"]
+    for kind in order:
+        if kind in ("flat", "radius"):
+            lo, hi = get(kind)
+            if lo is not None or hi is not None:
+                return kind, lo, hi
     return "", None, None
 
 
@@ -352,10 +369,13 @@ def _spec_checks(spec, internal, meas, tip_key, beta, reference):
                          source=f"symmetry +/-{TILT_TOL_DEG} deg, common practice, no source")
         checks.append(c)
         if c.result == "fail":
+            half = form_angle / 2
+            hl, hr = meas["half_left"].value, meas["half_right"].value
             side = "right" if t.value > 0 else "left"
-            advice.append(f"the point leans {abs(t.value):.2f} deg toward the {side} flank: "
-                          f"take {abs(t.value):.2f} deg off the {side} flank (or set the "
-                          "tool square with a centre gauge rather than by its shank)")
+            advice.append(f"the point leans {abs(t.value):.2f} deg to the {side} "
+                          f"(half-angles {hl:.2f} / {hr:.2f} deg): regrind both flanks to "
+                          f"{half:g} deg from the shank's axis, or set the tool square with a "
+                          "centre gauge rather than by its shank")
     else:
         warnings.append("symmetry not checked: no shank side in view")
     external = not internal
@@ -363,7 +383,7 @@ def _spec_checks(spec, internal, meas, tip_key, beta, reference):
         req = spec.tool_tip_for(external)
     except (AttributeError, TypeError):
         req = getattr(spec, "tool_tip", None)
-    kind, lo, hi = _limits_of(req)
+    kind, lo, hi = _limits_of(req, "radius" if tip_key == "tip_radius" else "flat")
     if not kind:
         warnings.append(f"{spec.designation}: no tool tip limits known for this thread")
         return checks, advice, warnings

@@ -31,7 +31,7 @@ _TITLES = {"pitch": "pitch", "flank_left": "flank angle, left", "flank_right":
            "major_diameter": "major diameter", "pitch_diameter": "pitch diameter",
            "minor_diameter": "minor diameter", "height_offset": "height (tool - axis)",
            "over_wire": "over wires", "scale_error": "scale error",
-           "scale_now": "scale now (from this reading)"}
+           "scale_now": "scale now"}
 
 
 def quantity_title(key: str) -> str:

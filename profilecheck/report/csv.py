@@ -7,8 +7,8 @@ n_points``. ``value`` and ``u`` (expanded, k = 2) are in ``unit`` (lengths mm, a
 'undecided' or empty (measured only). Numbers are written with Python's shortest round-trip
 representation, so reading the file back gives the same floats.
 
-Text that a spreadsheet would run as a formula (starting ``=``, ``+``, ``@``, tab or CR)
-is written with a leading apostrophe, which the reader removes again.
+Text that a spreadsheet would run as a formula (starting ``=``, ``+``, ``-``, ``@``, tab
+or CR) is written with a leading apostrophe, which the reader removes again.
 """
 
 from __future__ import annotations
@@ -30,7 +30,7 @@ __all__ = ["COLUMNS", "CsvFormatError", "readings_rows", "format_readings_csv",
 COLUMNS = ("job", "time", "kind", "image", "spec", "quantity", "value", "u", "unit", "min",
            "max", "result", "source", "n_points")
 _FLOATS = ("value", "u", "min", "max")
-_FORMULA_START = ("=", "+", "@", "\t", "\r")
+_FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
 
 
 class CsvFormatError(ProfilecheckError, ValueError):
@@ -96,14 +96,14 @@ def write_readings_csv(path: str | os.PathLike[str],
 
     Returns the number of reading rows written.
     """
-    from ..calibration.model import atomic_write_text
+    from .annotate import write_bytes_atomic
 
     if isinstance(results, Mapping):
         results = [results]
     rows: list[dict[str, Any]] = []
     for r in results:
         rows.extend(readings_rows(r, job=job, time=time))
-    atomic_write_text(path, format_readings_csv(rows))
+    write_bytes_atomic(path, format_readings_csv(rows).encode("utf-8"))
     return len(rows)
 
 

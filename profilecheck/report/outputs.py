@@ -30,11 +30,11 @@ import os
 from pathlib import Path
 from typing import Any, Mapping
 
-__all__ = ["add_output_arguments", "prepare_outputs", "add_standard_outputs",
+__all__ = ["add_output_arguments", "prepare_outputs", "add_standard_outputs", "write_all",
            "result_dict_of", "auto_scale_bar", "SHEET_MAX_SIDE"]
 
 #: Longer side (px) of the picture embedded in a job sheet (keeps the HTML small).
-SHEET_MAX_SIDE = 1400
+SHEET_MAX_SIDE = 1000
 
 
 def add_output_arguments(parser: argparse.ArgumentParser, *, annotate: bool = True) -> None:
@@ -59,12 +59,18 @@ def add_output_arguments(parser: argparse.ArgumentParser, *, annotate: bool = Tr
 
 def prepare_outputs(args: argparse.Namespace) -> Any:
     """An :class:`~profilecheck.commands._common.OutputSet` after checking every output path
-    named in ``args`` (their folders must exist), so a bad path fails before any work."""
+    named in ``args`` (their folders must exist) and opening an existing ``--log`` (a damaged
+    or foreign file raises LogError), so a bad output fails before any work."""
     from ..commands._common import OutputSet
 
     for attr, what in (("json", "JSON file"), ("annotate", "annotated image"),
                        ("sheet", "job sheet"), ("csv", "CSV file"), ("log", "log")):
         OutputSet.check_path(getattr(args, attr, None), what)
+    log = getattr(args, "log", None)
+    if log and Path(log).exists():  # a damaged or foreign log fails now, before any work
+        from ..log import InspectionLog
+
+        InspectionLog(log, create=False).close()
     return OutputSet()
 
 
@@ -164,17 +170,18 @@ def add_standard_outputs(outputs: Any, args: argparse.Namespace, result: Any,
             png_sheet = encode_png(draw_overlays(image, ovs, scale_bar=bar,
                                                  max_side=SHEET_MAX_SIDE))
     if getattr(args, "json", None):
-        outputs.add_text(Path(args.json), dumps_json(d))
+        _queue_bytes(outputs, Path(args.json), dumps_json(d).encode("utf-8"))
     if ann_path and png_full is not None:
-        outputs.add_writer(ann_path, lambda tmp, data=png_full: tmp.write_bytes(data))
+        _queue_bytes(outputs, ann_path, png_full)
     if sheet_path:
         from .sheet import render_sheet
 
-        outputs.add_text(sheet_path, render_sheet(d, png_sheet, job=job))
+        _queue_bytes(outputs, sheet_path, render_sheet(d, png_sheet, job=job).encode("utf-8"))
     if getattr(args, "csv", None):
         from .csv import format_readings_csv, readings_rows
 
-        outputs.add_text(Path(args.csv), format_readings_csv(readings_rows(d, job=job)))
+        _queue_bytes(outputs, Path(args.csv),
+                     format_readings_csv(readings_rows(d, job=job)).encode("utf-8"))
     if getattr(args, "log", None):
         log_path = Path(args.log)
 
@@ -186,6 +193,51 @@ def add_standard_outputs(outputs: Any, args: argparse.Namespace, result: Any,
 
         _add_action(outputs, log_path, _log)
     return d
+
+
+def write_all(result: Any, image: Any, stem: str | os.PathLike[str], *,
+              formats: tuple[str, ...] = ("json", "png", "html", "csv"),
+              job: str | None = None, log: str | os.PathLike[str] | None = None,
+              image_path: str | os.PathLike[str] | None = None,
+              calibration_path: str | os.PathLike[str] | None = None) -> dict[str, Path]:
+    """Write a result's reports beside each other: ``<stem>.json``, ``<stem>.png``
+    (annotated), ``<stem>.html`` (job sheet), ``<stem>.csv``, and optionally append to a
+    log. Used by the demo and by scripts.
+
+    Returns
+    -------
+    dict
+        Format name -> path written.
+    """
+    unknown = set(formats) - {"json", "png", "html", "csv"}
+    if unknown:
+        raise ValueError(f"formats: unknown {sorted(unknown)}; use json, png, html, csv")
+    stem = Path(stem)
+    paths = {"json": stem.with_name(stem.name + ".json"),
+             "png": stem.with_name(stem.name + ".png"),
+             "html": stem.with_name(stem.name + ".html"),
+             "csv": stem.with_name(stem.name + ".csv")}
+    paths = {k: v for k, v in paths.items() if k in formats}
+    args = argparse.Namespace(json=paths.get("json"), annotate=paths.get("png"),
+                              sheet=paths.get("html"), csv=paths.get("csv"), log=log,
+                              job=job or stem.name, image=image_path, cal=calibration_path)
+    outputs = prepare_outputs(args)
+    add_standard_outputs(outputs, args, result, image)
+    outputs.commit()
+    return paths
+
+
+def _queue_bytes(outputs: Any, path: Path, data: bytes) -> None:
+    """Queue ``data`` for ``path``: written to the OutputSet's temporary name, flushed to
+    disk (fsync) and renamed at commit; the new file gets the usual umask permissions."""
+
+    def _write(tmp: Path, data: bytes = data) -> None:
+        with open(tmp, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+
+    outputs.add_writer(path, _write)
 
 
 def _as_path(p: Any) -> Path | None:

@@ -22,7 +22,8 @@ from pathlib import Path
 from typing import Any, Mapping
 
 from ._cautions import ACCEPTANCE_NOTE, cautions_for
-from ._context import calibration_summary, image_name, spec_designation, spec_numbers
+from ._context import (calibration_summary, image_name, infeed_rows, spec_designation,
+                       spec_numbers)
 from ._fmt import fmt_limits, fmt_pair, verdict_word
 from ._rows import quantity_title, readings
 
@@ -36,6 +37,12 @@ _PNG_MAGIC = b"\x89PNG\r\n\x1a\n"
 
 def _e(v: Any) -> str:
     return html.escape(str(v), quote=True)
+
+
+def _short(text: str, limit: int = 64) -> str:
+    """A limit's source cut to ``limit`` characters (the full text is the cell's title)."""
+    text = " ".join(str(text).split())
+    return text if len(text) <= limit else text[:limit - 1].rstrip() + "\u2026"
 
 
 def _png_bytes(annotated_png: bytes | str | os.PathLike[str] | None) -> bytes | None:
@@ -157,7 +164,8 @@ def render_sheet(result_dict: Mapping[str, Any],
                 f"<td class=\"num\">{_e(metric)}</td><td class=\"num\">{_e(inch)}</td>"
                 f"<td class=\"num\">{_e(lim_mm)}{'<br>' + _e(lim_in) if lim_in else ''}</td>"
                 f"<td class=\"word r-{_e(res)}\">{word if not res else _e(word)}</td>"
-                f"<td class=\"src\">{_e(row.source)}</td></tr>\n")
+                f"<td class=\"src\" title=\"{_e(row.source)}\">{_e(_short(row.source))}</td>"
+                "</tr>\n")
         add("</tbody></table>\n")
     else:
         add("<p>No readings in this result.</p>\n")
@@ -179,8 +187,17 @@ def render_sheet(result_dict: Mapping[str, Any],
     shown = [(k, v) for k, v in cal_rows if v]
     for k, v in shown or [("calibration", "not stated in this result")]:
         add(f"<dt>{_e(k)}</dt><dd>{_e(v)}</dd>")
-    add("</dl></div>\n<div><h2>Spec</h2>\n<dl>")
-    numbers = spec_numbers(spec_d, r)
+    add("</dl>")
+    infeed = infeed_rows(r)
+    if infeed:
+        add("<h2>Infeed to go</h2>\n<dl>")
+        for k, v in infeed:
+            add(f"<dt>{_e(k.replace('infeed to go, ', ''))}</dt><dd>{_e(v)}</dd>")
+        add("</dl>")
+    add("</div>\n<div><h2>Spec</h2>\n<dl>")
+    shown_limits = frozenset(row.quantity for row in rows if row.min is not None
+                             or row.max is not None)
+    numbers = spec_numbers(spec_d, None, skip_limits=shown_limits)
     for k, v in numbers or [("spec", spec_designation(r) or "none given: measured only")]:
         add(f"<dt>{_e(k)}</dt><dd>{_e(v)}</dd>")
     add("</dl></div></div>\n")
@@ -192,6 +209,14 @@ def render_sheet(result_dict: Mapping[str, Any],
         add("<ul class=\"warn\">" + "".join(f"<li>{_e(w)}</li>" for w in warnings) + "</ul>\n")
     else:
         add("<p class=\"rule\">None raised by the measurement.</p>\n")
+    advice = [str(a) for a in (r.get("advice") or []) if str(a).strip()]
+    if advice:
+        add("<h2>What to do</h2>\n<ul class=\"warn\">"
+            + "".join(f"<li>{_e(a)}</li>" for a in advice) + "</ul>\n")
+    notes = [str(n) for n in (r.get("notes") or []) if str(n).strip()]
+    if notes:
+        add("<p class=\"rule\"><b>Method notes:</b> " + " &middot; ".join(_e(n) for n in notes)
+            + "</p>\n")
     add("<div class=\"caution\"><b>Caution</b><ul>")
     add("".join(f"<li>{_e(c)}</li>" for c in cautions_for(kind)))
     add(f"</ul><p class=\"rule\">{_e(ACCEPTANCE_NOTE)}</p></div>\n")
@@ -209,6 +234,6 @@ def write_sheet(path: str | os.PathLike[str], result_dict: Mapping[str, Any],
 
     Keyword arguments are those of :func:`render_sheet`.
     """
-    from ..calibration.model import atomic_write_text
+    from .annotate import write_bytes_atomic
 
-    atomic_write_text(path, render_sheet(result_dict, annotated_png, **kwargs))
+    write_bytes_atomic(path, render_sheet(result_dict, annotated_png, **kwargs).encode("utf-8"))

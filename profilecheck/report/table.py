@@ -101,6 +101,14 @@ def format_table(result_dict: dict[str, Any], units: str = "mm", *,
     if warnings:
         lines.append("warnings:")
         lines.extend(f"  - {w}" for w in warnings)
+    advice = [str(a) for a in (r.get("advice") or []) if str(a).strip()]
+    if advice:
+        lines.append("what to do:")
+        lines.extend(f"  - {a}" for a in advice)
+    from ._context import infeed_rows
+
+    for name, text in infeed_rows(r):
+        lines.append(f"{name}: {text}")
     if rule and overall not in ("none", ""):
         from ..verdict import DECISION_RULE
 

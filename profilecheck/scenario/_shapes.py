@@ -36,7 +36,8 @@ def tool_top_view(*, half_left_deg: float = 30.0, half_right_deg: float = 30.0,
     the outline left-right before it is turned (a left-hand tool of the same grind).
 
     Returns the outline (N, 2) mm and the truth: included_angle, half_left, half_right,
-    bisector_tilt (deg; as seen after mirroring), tip_flat or tip_radius (mm).
+    bisector_tilt (deg, + when the point leans right with the point up; as seen after
+    mirroring), tip_flat or tip_radius (mm).
     """
     if tip_flat_mm > 0 and tip_radius_mm > 0:
         raise ValueError("give tip_flat_mm or tip_radius_mm, not both")
@@ -74,7 +75,7 @@ def tool_top_view(*, half_left_deg: float = 30.0, half_right_deg: float = 30.0,
         hl, hr = hr, hl
     poly = _rot(poly, direction_deg - 90.0) + np.asarray(apex_mm, float)
     truth = {"included_angle": hl + hr, "half_left": hl, "half_right": hr,
-             "bisector_tilt": (hr - hl) / 2}
+             "bisector_tilt": (hl - hr) / 2}
     if tip_radius_mm > 0:
         truth["tip_radius"] = tip_radius_mm
     else:

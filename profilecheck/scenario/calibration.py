@@ -21,7 +21,7 @@ import numpy as np
 
 from . import BENCH_CAMERA, CLOSE_CAMERA, LATHE_CAMERA
 
-__all__ = ["field_length_mm", "bar_polygon", "ruled_lines", "cylinder_silhouette_px", "board_view_px",
+__all__ = ["field_length_mm", "bar_polygon", "ruled_lines", "cylinder_silhouette_px", "board_view_px", "board_views",
            "render_bar", "make_samples", "make_calibrations", "SAMPLES"]
 
 #: Demo pin gauges: (sample name, camera, pin diameter mm, tilt deg, calibration file).
@@ -135,6 +135,40 @@ def board_view_px(camera: Any, pattern: Sequence[int], square_mm: float, rvec: S
     return polys, px.reshape(-1, 2)
 
 
+def board_views(camera: Any, pattern: Sequence[int], square_mm: float, *, n_views: int = 10,
+                tilt_deg: tuple[float, float] = (10.0, 20.0), seed: int = 0,
+                first_square: bool = True) -> list[tuple[list[np.ndarray], np.ndarray, tuple]]:
+    """Poses of a checkerboard for a lens calibration and their projections.
+
+    The board centre sits on the optical axis (within +/- 0.4 mm) at the camera's working
+    distance; view 0 is square to the camera when ``first_square``, the others are tilted by
+    an angle drawn from ``tilt_deg`` about an in-plane axis turning 137.5 deg per view (so
+    the tilt directions spread evenly). Returns ``[(dark_squares_px, corners_px, (rvec,
+    tvec)), ...]`` from :func:`board_view_px`.
+    """
+    import cv2
+
+    cols, rows = (int(v) for v in pattern)
+    rng = np.random.default_rng(seed)
+    centre = np.array([(cols - 1) * square_mm / 2.0, (rows - 1) * square_mm / 2.0, 0.0])
+    out = []
+    for i in range(int(n_views)):
+        phi = math.radians(137.5 * i)
+        axis = np.array([math.cos(phi), math.sin(phi), 0.0])
+        ang = 0.0 if (i == 0 and first_square) else math.radians(rng.uniform(*tilt_deg))
+        r, _ = cv2.Rodrigues(axis * ang)
+        spin = math.radians(rng.uniform(-3.0, 3.0))
+        rz = np.array([[math.cos(spin), -math.sin(spin), 0.0], [math.sin(spin), math.cos(spin), 0.0],
+                       [0.0, 0.0, 1.0]])
+        r = r @ rz
+        shift = np.array([rng.uniform(-0.4, 0.4), rng.uniform(-0.4, 0.4), camera.working_distance_mm])
+        t = shift - r @ centre
+        rvec = cv2.Rodrigues(r)[0].ravel()
+        polys, corners = board_view_px(camera, (cols, rows), square_mm, rvec, t)
+        out.append((polys, corners, (rvec, t)))
+    return out
+
+
 def render_bar(cam_params: dict, width_mm: float, *, tilt_deg: float = 0.0, seed: int = 0,
                centre_mm: Sequence[float] = (0.0, 0.0), **overrides: Any) -> tuple[np.ndarray, dict]:
     """Render a pin (dark bar) with one of the scenario cameras (parallel view)."""
@@ -173,9 +207,12 @@ def make_samples(out_dir: Path, *, cal_dir: Path | None = None) -> list[dict]:
 
     ``cal_dir`` defaults to the repository's ``calibration/`` when ``out_dir`` is its
     ``sample_images/``, otherwise to ``out_dir`` itself. Returns manifest entries (see
-    :mod:`profilecheck.scenario`): job ``calibration``, ``args`` with the pin diameter and
-    gauge uncertainty, ``cal`` naming the calibration file made from it, ``expect`` the
-    scale the render used (the file must hold it within its U).
+    :mod:`profilecheck.scenario`): job ``calibration``; ``args`` = ``gauge`` ('pin'),
+    ``size_mm`` and the keyword arguments of :func:`profilecheck.calibration.calibrate_from_pin`
+    (``u_gauge_mm``, ``label``); ``cal`` naming the calibration file made from it;
+    ``expect`` 'none' (a calibration has no verdict); ``truth_mm_per_px`` the scale the
+    render used (also ``mm_per_px`` in the truth file; the calibration must hold it within
+    its U).
     """
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
@@ -186,8 +223,9 @@ def make_samples(out_dir: Path, *, cal_dir: Path | None = None) -> list[dict]:
         (out / f"{name}.truth.json").write_text(json.dumps(truth, indent=1, sort_keys=True) + "\n")
         entries.append({"job": "calibration", "name": name, "image": f"{name}.png",
                         "truth": f"{name}.truth.json", "cal": cal_name,
-                        "args": {"pin": f"{d_mm:.3f}mm", "gauge_u": f"{DEMO_PIN_U_MM * 1000:g}um"},
-                        "expect": {"mm_per_px": cam["mm_per_px"]},
+                        "args": {"gauge": "pin", "size_mm": d_mm, "u_gauge_mm": DEMO_PIN_U_MM,
+                                 "label": title},
+                        "expect": "none", "truth_mm_per_px": cam["mm_per_px"],
                         "title": f"pin gauge {d_mm:.3f} mm, {title}"})
     make_calibrations(out, _default_cal_dir(out) if cal_dir is None else Path(cal_dir))
     return entries
@@ -199,13 +237,17 @@ def make_calibrations(sample_dir: Path, cal_dir: Path) -> list[Path]:
     The files are the output of our own command line, so the demo's calibrations are
     exactly what a user would get from the same images.
     """
+    import contextlib
+    import sys
+
     from ..cli import main
 
     written = []
     for name, cam, d_mm, _tilt, cal_name, title in SAMPLES:
         target = Path(cal_dir) / cal_name
-        rc = main(["calibrate", str(Path(sample_dir) / f"{name}.png"), "--pin", f"{d_mm:.3f}mm",
-                   "--gauge-u", f"{DEMO_PIN_U_MM * 1000:g}um", "--label", title, "--out", str(target)])
+        with contextlib.redirect_stdout(sys.stderr):  # the summary is progress here
+            rc = main(["calibrate", str(Path(sample_dir) / f"{name}.png"), "--pin", f"{d_mm:.3f}mm",
+                       "--gauge-u", f"{DEMO_PIN_U_MM * 1000:g}um", "--label", title, "--out", str(target)])
         if rc != 0:
             raise RuntimeError(f"calibrate failed on {name} (exit {rc})")
         written.append(target)

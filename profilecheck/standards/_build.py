@@ -8,7 +8,15 @@ from typing import Any
 from . import wires
 from .spec import BASIC_ONLY, BasicProfile, Limit, ThreadSpec, ToolTip
 
-__all__ = ["assemble"]
+__all__ = ["assemble", "check_proportions"]
+
+
+def check_proportions(original: str, major_mm: float, pitch_mm: float, example: str) -> None:
+    """Reject a pitch coarser than half the diameter (no core left: not a usable thread)."""
+    from ..errors import SpecError
+    if not pitch_mm <= 0.5 * major_mm:
+        raise SpecError(f"{original!r}: a pitch of {pitch_mm:.4g} mm is too coarse for a "
+                        f"{major_mm:.4g} mm diameter; e.g. {example}")
 
 
 def assemble(*, designation: str, form: str, series: str, thread_class: str, external: bool,
@@ -26,6 +34,14 @@ def assemble(*, designation: str, form: str, series: str, thread_class: str, ext
     basic diameters, and the straight flank ends at rho cos^2(theta) / sin(theta) below
     the sharp crest for a crest radius rho (standards-notes §4, §5).
     """
+    if limits:
+        mj, pd, mn = (limits[k] for k in ("major_diameter", "pitch_diameter", "minor_diameter"))
+        if not (mn.max_mm < pd.min_mm and pd.max_mm < mj.min_mm):
+            from ..errors import SpecError
+            raise SpecError(f"{designation}: the class tolerances are larger than the thread "
+                            "depth for this diameter and pitch (outside the range the standard "
+                            "covers); choose a coarser pitch or a closer class, e.g. "
+                            "1/4-20 UNC-2A or M6x1-6g")
     th = math.radians(0.5 * included_angle_deg)
     P = pitch_mm
     ext_major = major_mm if wire_major_mm is None else wire_major_mm

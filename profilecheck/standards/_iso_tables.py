@@ -9,7 +9,7 @@ in these tables is computed from the ISO 965-1 formulas and reported 'formula-de
 from __future__ import annotations
 
 __all__ = ["COARSE_PITCH", "ES_G_UM", "TD_6_UM", "TD2_6_UM", "TD2_INT_6_UM", "TD1_6_UM",
-           "DIAMETER_RANGES"]
+           "DIAMETER_RANGES", "ENGAGEMENT_N_MM"]
 
 #: ISO 261 coarse pitch per nominal diameter, mm (standards-notes §1 [C 2][P 7]; sizes
 #: not listed there [M]).
@@ -70,4 +70,12 @@ TD1_6_UM: dict[float, int] = {
     0.35: 100, 0.4: 112, 0.45: 125, 0.5: 140, 0.6: 160, 0.7: 180, 0.75: 190, 0.8: 200,
     1.0: 236, 1.25: 265, 1.5: 300, 1.75: 335, 2.0: 375, 2.5: 450, 3.0: 500, 3.5: 560,
     4.0: 600, 4.5: 670, 5.0: 710, 5.5: 750, 6.0: 800,
+}
+
+#: Normal length of engagement N (min, max) in mm by (diameter-range index, pitch),
+#: ISO 965-1 Table 2 rows quoted in standards-notes §2 [C 2] (consistent with [M]).
+ENGAGEMENT_N_MM: dict[tuple[int, float], tuple[float, float]] = {
+    (2, 0.5): (1.5, 4.5), (2, 0.7): (2.0, 6.0), (2, 0.8): (2.5, 7.5),
+    (3, 1.0): (3.0, 9.0), (3, 1.25): (4.0, 12.0), (3, 1.5): (5.0, 15.0),
+    (4, 1.75): (6.0, 18.0), (4, 2.0): (8.0, 24.0), (4, 2.5): (10.0, 30.0),
 }

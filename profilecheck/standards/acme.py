@@ -19,7 +19,7 @@ from decimal import Decimal
 
 from ..errors import SpecError
 from ..units import MM_PER_IN, round_half_up
-from ._build import assemble
+from ._build import assemble, check_proportions
 from .designation import Designation, format_designation
 from .spec import BASIC_ONLY, BasicProfile, Limit, ThreadSpec, ToolTip
 
@@ -71,9 +71,7 @@ def acme_spec(d: Designation, original: str) -> ThreadSpec:
                         "(general purpose); e.g. 1/2-10 ACME-2G")
     P = MM_PER_IN / float(d.tpi)
     D = float(d.diameter) * MM_PER_IN
-    if D - P <= 0:
-        raise SpecError(f"{original!r}: the pitch is too coarse for the diameter; "
-                        "e.g. 1/2-10 ACME-2G")
+    check_proportions(original, D, P, "1/2-10 ACME-2G")
     external = d.internal is not True
     L = acme_limits_in(d.diameter, d.tpi, cls)
     c_mm = float(L["clearance"]) * MM_PER_IN

@@ -5,7 +5,9 @@ Grammar (case-insensitive except the ISO tolerance letters, whose case says exte
 
 * Unified inch (ASME B1.1): ``SIZE-TPI SERIES[-CLASS][-LH][-nSTART]``, e.g. ``1/4-20 UNC-2A``,
   ``#10-32 UNF-2B``, ``1-1/2-6 UNC-2A``, ``2.500-8 UN-2A``, ``1/4-40 UNS-2A``, ``1/4-20 UNRC-2A``,
-  ``1/2-13 UNC-2A-2START`` (two starts, lead 2P; ``(2 STARTS)`` is read too). SIZE is a
+  ``1/2-13 UNC-2A-2START`` (two starts, lead 2P; ``(2 STARTS)`` is read too, and the
+  ASME B1.1 marking with pitch and lead in inches, ``0.500-0.0769P-0.1538L(2 STARTS) UNC-2A``,
+  where 1/P must be a whole or half number of threads per inch). SIZE is a
   number size 0-12 (``#`` optional), a fraction (``1/4``, ``1-1/2``, ``1 1/2``, ``2½``) or a
   decimal inch (``0.250``). A bare integer 1 or 2 is a number size when TPI >= 48, 3-12 when
   TPI >= 24, otherwise whole inches (``1-8 UNC`` is one inch). SERIES: UNC, UNF, UNEF, UN
@@ -256,7 +258,37 @@ def _parse_ba(s: str, original: str) -> Designation | None:
     return Designation("ba", str(n), Decimal(n), "BA")
 
 
+_ASME_LEAD_RE = re.compile(
+    rf"^(?P<size>#?(?:\d+[- ]\d+/\d+|\d+/\d+|\d*\.\d+|\d+))\s*-\s*(?P<p>{_NUM})\s*P\s*-\s*"
+    rf"(?P<l>{_NUM})\s*L\s*(?:\(\s*(?P<n>\d+)\s*STARTS?\s*\))?\s*-?\s*(?P<rest>[A-Z].*)$",
+    re.IGNORECASE)
+
+
+def _asme_lead_form(s: str, original: str) -> tuple[str, int] | None:
+    """Rewrite ``SIZE-pP-lL(n STARTS) SERIES-CLASS`` as ``SIZE-tpi SERIES-CLASS`` and starts."""
+    m = _ASME_LEAD_RE.match(s)
+    if m is None:
+        return None
+    p, lead = _dec(m.group("p"), original), _dec(m.group("l"), original)
+    if p <= 0 or lead <= 0:
+        raise SpecError(f"{original!r}: the pitch and lead must be above zero; "
+                        f"valid examples: {EXAMPLES}")
+    tpi = (2 / p).to_integral_value() / 2    # nearest whole or half tpi
+    if abs(tpi * p - 1) > Decimal("0.002"):
+        raise _bad(original, f"pitch {p} in is not a whole number of threads per inch")
+    starts = int((lead / p).to_integral_value())
+    if starts < 1 or abs(starts * p - lead) > Decimal("0.0005"):
+        raise _bad(original, "the lead must be a whole number of pitches")
+    if m.group("n") and int(m.group("n")) != starts:
+        raise _bad(original, "the lead and the number of starts disagree")
+    return f"{m.group('size')}-{tpi.normalize():f} {m.group('rest')}", starts
+
+
 def _parse_inch(s: str, original: str) -> Designation | None:
+    lead_form = _asme_lead_form(s, original)
+    if lead_form is not None:
+        d = _parse_inch(lead_form[0], original)
+        return None if d is None else replace(d, starts=lead_form[1])
     m = _INCH_RE.match(s)
     if m is None:
         return None

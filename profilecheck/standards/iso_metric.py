@@ -18,12 +18,13 @@ from decimal import Decimal
 from ..errors import SpecError
 from ..units import round_half_up
 from ._build import assemble
-from ._iso_tables import (COARSE_PITCH, DIAMETER_RANGES, ES_G_UM, TD1_6_UM, TD2_6_UM,
-                          TD2_INT_6_UM, TD_6_UM)
+from ._iso_tables import (COARSE_PITCH, DIAMETER_RANGES, ENGAGEMENT_N_MM, ES_G_UM,
+                          TD1_6_UM, TD2_6_UM, TD2_INT_6_UM, TD_6_UM)
 from .designation import Designation, format_designation
 from .spec import BasicProfile, Limit, ThreadSpec, ToolTip
 
-__all__ = ["metric_spec", "metric_limits_mm", "fundamental_deviation_um", "r40"]
+__all__ = ["metric_spec", "metric_limits_mm", "fundamental_deviation_um", "r40",
+           "normal_engagement_mm"]
 
 _TABLE = "ISO 965-1 table"
 _FORMULA = "formula-derived"
@@ -161,6 +162,23 @@ def metric_limits_mm(d_mm: float, pitch_mm: float, cls: str) -> dict[str, tuple[
     }
 
 
+def normal_engagement_mm(d_mm: float, pitch_mm: float) -> Limit | None:
+    """Normal length of engagement N of ISO 965-1 (Table 2 where known, else §13.2 formula).
+
+    Formula (standards-notes §2 [C 1]): LN from 2.24 P d^0.2 to 6.7 P d^0.2 with d the
+    geometric mean of the diameter range; it does not reproduce the table (M6x1: 3.39-10.1
+    against 3-9 mm), so formula values are marked 'formula-derived'.
+    """
+    i = _range_index(d_mm)
+    if i is None:
+        return None
+    row = ENGAGEMENT_N_MM.get((i, pitch_mm))
+    if row is not None:
+        return Limit(row[0], row[1], _TABLE + " 2")
+    dm = _range_mean(i) ** 0.2
+    return Limit(round(2.24 * pitch_mm * dm, 1), round(6.7 * pitch_mm * dm, 1), _FORMULA)
+
+
 def metric_spec(d: Designation, original: str) -> ThreadSpec:
     """ThreadSpec of an ISO metric designation."""
     D = float(d.diameter)
@@ -236,6 +254,14 @@ def metric_spec(d: Designation, original: str) -> ThreadSpec:
                               "tip flat <= P/8; standards-notes §10 [D]",
                        note="no lower limit in the standard; a sharp tip is weak")
     dd = d if d.thread_class else replace(d, thread_class=cls)
+    notes = ["radial depth: external h3 = 17H/24 with an H/6 tool radius, internal from the "
+             "bore to the basic major 5H/8 (standards-notes §1, §10)"]
+    eng = normal_engagement_mm(D, P)
+    if eng is not None:
+        notes.append(f"normal length of engagement N: {eng.min_mm:g} to {eng.max_mm:g} mm "
+                     f"({eng.source}); the tolerances assume N")
+    if d.starts > 1:
+        notes.append("limits as for a single-start thread of this pitch")
     return assemble(
         designation=format_designation(dd), form="ISO metric", series=series,
         thread_class=cls, external=external, left_hand=d.left_hand, starts=d.starts,
@@ -244,7 +270,6 @@ def metric_spec(d: Designation, original: str) -> ThreadSpec:
         tool_int=tool_int,
         radial_depth_mm=(0.613435 * P if external else 0.541266 * P),
         shape={"min": {"root_radius_mm": 0.125 * P}} if external else {},
-        notes=("radial depth: external h3 = 17H/24 with an H/6 tool radius, internal from the "
-               "bore to the basic major 5H/8 (standards-notes §1, §10)",),
+        notes=tuple(notes),
         sources=("ISO 68-1 basic profile", "ISO 261 coarse pitches",
                  "ISO 965-1 Tables 1-5 where tabulated, formulas (§13) otherwise"))

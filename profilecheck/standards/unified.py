@@ -11,11 +11,12 @@ All rounding is decimal half-up (``profilecheck.units.round_half_up``).
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 from decimal import Decimal
 
 from ..errors import SpecError
 from ..units import MM_PER_IN, round_half_up
-from ._build import assemble
+from ._build import assemble, check_proportions
 from ._unified_tables import CONSTANT_PITCH_TPI, tpi_of
 from .designation import EXAMPLES, Designation, format_designation
 from .spec import BasicProfile, Limit, ThreadSpec, ToolTip
@@ -138,6 +139,8 @@ def unified_spec(d: Designation, original: str) -> ThreadSpec:
     if d.tpi is None:
         raise SpecError(f"{original!r}: a Unified thread needs its threads per inch, "
                         "e.g. 1/4-20 UNC-2A")
+    check_proportions(original, float(d.diameter) * MM_PER_IN, MM_PER_IN / float(d.tpi),
+                      "1/4-20 UNC-2A")
     base = _check_series(d, original)
     cls = d.thread_class or "2A"
     if cls not in _PD_FACTOR:
@@ -202,20 +205,20 @@ def unified_spec(d: Designation, original: str) -> ThreadSpec:
                               "§10 [D]",
                        note="no lower limit in the standard; a sharp tip is weak")
     form = "UNR" if unr else "UN"
+    notes = [f"PD tolerance with {le_note} = {float(L['LE']):.4f} in as the ASME B1.1 tables "
+             "assume",
+             "radial depth: from the basic major diameter to the root cut by a P/8 flat "
+             "(external), or from the bore to the basic major (internal); standards-notes §10"]
+    if d.starts > 1:
+        notes.append("limits as for a single-start thread of this pitch")
     return assemble(
-        designation=format_designation(d if d.thread_class else _with_class(d, cls)),
+        designation=format_designation(d if d.thread_class else replace(d, thread_class=cls)),
         form=form, series=d.series, thread_class=cls, external=external,
         left_hand=d.left_hand, starts=d.starts, included_angle_deg=60.0, pitch_mm=P_mm,
         major_mm=D_mm, pd_mm=d2_mm, minor_mm=d1_mm, limits=limits, profile=profile,
         tool_ext=tool_ext, tool_int=tool_int, tpi=float(d.tpi),
         radial_depth_mm=(0.649519 * P_mm if external else 0.541266 * P_mm),
         shape={"min": {"root_radius_mm": 0.10825318 * P_mm}} if (unr and external) else {},
-        notes=(f"PD tolerance with {le_note} as the ASME B1.1 tables assume",
-               "radial depth: from the basic major diameter to the root cut by a P/8 flat "
-               "(external), or from the bore to the basic major (internal); standards-notes §10"),
+        notes=tuple(notes),
         sources=("ASME B1.1 §5.8 formulas as reproduced in standards-notes §3",))
 
-
-def _with_class(d: Designation, cls: str) -> Designation:
-    from dataclasses import replace
-    return replace(d, thread_class=cls)

@@ -44,7 +44,7 @@ from ._profiles import ARC, AxialProfile, piece_dr, piece_r
 
 __all__ = ["limb_outline", "envelope"]
 
-_BISECT = 60
+_BISECT = 44  # piece or angle range / 2^44: < 1e-12 mm
 
 
 def _gen_point(kind, u0, p, u, a, tg, c, s):
@@ -238,7 +238,7 @@ def limb_outline(prof: AxialProfile, lead_mm: float, xi_start: float, xi_stop: f
     if len(sw):
         lo, hi = xi[sw].copy(), xi[sw + 1].copy()
         wl = who[sw]
-        for _ in range(44):
+        for _ in range(36):  # step / 2^36: < 1e-13 mm
             mid = 0.5 * (lo + hi)
             order = np.argsort(mid)
             _, wm_sorted = cand.evaluate(mid[order])

@@ -25,6 +25,7 @@ from __future__ import annotations
 
 import math
 
+import cv2
 import numpy as np
 from scipy.special import ndtr
 
@@ -138,7 +139,7 @@ def _weight_matrix(n_out: int, margin: int, ss: int, sigma: float) -> np.ndarray
 
 
 def coverage(polys_px: list[np.ndarray], shape: tuple[int, int], *, sigma_px: float = 0.0,
-             ss: int = 8, weights: list[float] | None = None, tile: int = 64) -> np.ndarray:
+             ss: int = 4, weights: list[float] | None = None, tile: int = 64) -> np.ndarray:
     """Blurred, pixel-integrated area coverage of the union of polygons.
 
     Parameters
@@ -196,5 +197,9 @@ def coverage(polys_px: list[np.ndarray], shape: tuple[int, int], *, sigma_px: fl
             i0, i1 = np.searchsorted(fr, [r0, r0 + nf])
             c0 = tx * tile * ss
             fine = _accumulate(fr[i0:i1] - r0, fc[i0:i1] - c0, ff[i0:i1], fd[i0:i1], (nf, nf))
-            out[ty * tile:(ty + 1) * tile, tx * tile:(tx + 1) * tile] = wmat @ fine @ wmat.T
+            # cv2.gemm: single-threaded here; BLAS thread pools stall on small products
+            # when the machine is busy
+            part = cv2.gemm(wmat, fine, 1.0, None, 0.0)
+            out[ty * tile:(ty + 1) * tile, tx * tile:(tx + 1) * tile] = \
+                cv2.gemm(part, wmat, 1.0, None, 0.0, flags=cv2.GEMM_2_T)
     return np.clip(out[:h, :w], 0.0, 1.0)

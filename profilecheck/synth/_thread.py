@@ -185,6 +185,36 @@ def outline_values(outline: np.ndarray, pitch_mm: float, r_minor_mm: float, r_ma
 
 
 # ------------------------------------------------------------------ the part
+def _pinhole_outline(camera, profile, lead, right_hand, x_start, length, axis_y, up_w, lo_w):
+    """Ray-cast both limbs on image columns every 0.5 px; returns ([polygon px], dict)."""
+    from ._raycast import pinhole_limb_px
+
+    gu = camera.world_to_px(up_w)
+    gl = camera.world_to_px(lo_w)
+    c0 = max(math.ceil(max(gu[:, 0].min(), gl[:, 0].min())), -20)
+    c1 = min(math.floor(min(gu[:, 0].max(), gl[:, 0].max())), camera.width + 20)
+    if c1 <= c0:
+        raise ValueError("the thread does not reach the image")
+    cols = np.arange(c0, c1 + 1e-9, 0.5)
+    ou, ol = np.argsort(gu[:, 0]), np.argsort(gl[:, 0])
+    vu = np.interp(cols, gu[ou, 0], gu[ou, 1])
+    vl = np.interp(cols, gl[ol, 0], gl[ol, 1])
+    r = profile.info["major_d_mm"] / 2
+    depth_px = (r - profile.info["minor_d_mm"] / 2) / camera.mm_per_px
+    bracket = depth_px + r * r / (camera.working_distance_mm * camera.mm_per_px) + 3.0
+    x0 = x_start
+    rows_u = pinhole_limb_px(camera, profile, lead, cols, vu, limb="upper", right_hand=right_hand,
+                             x0_mm=x0, axis_y_mm=axis_y, bracket_px=bracket)
+    rows_l = pinhole_limb_px(camera, profile, lead, cols, vl, limb="lower", right_hand=right_hand,
+                             x0_mm=x0, axis_y_mm=axis_y, bracket_px=bracket)
+    good = np.isfinite(rows_u) & np.isfinite(rows_l)
+    if not np.all(good):
+        raise RuntimeError("pinhole thread outline: a column without a clear edge")
+    top = np.column_stack([cols, rows_u])
+    bot = np.column_stack([cols, rows_l])
+    return [np.vstack([top, bot[::-1]])], {"upper": top.tolist(), "lower": bot.tolist()}
+
+
 def _clip_below(outline: np.ndarray, cap: Callable[[np.ndarray], np.ndarray]) -> np.ndarray:
     """min(outline(x), cap(x)) with crossing points inserted (cap piecewise linear)."""
     x, y = outline[:, 0], outline[:, 1]
@@ -347,6 +377,20 @@ def render_thread(camera: Camera, *, profile: AxialProfile | None = None, pitch_
         },
         "outline_mm": {"upper": (up + shift).tolist(), "lower": (lo + shift).tolist()},
     }
+    if camera.pinhole:
+        if shank_length_mm or groove_length_mm or chamfer_mm or chip:
+            raise ValueError("pinhole thread renders take the plain thread only: no shank, "
+                             "groove, chamfer or chip")
+        polys_px, outl = _pinhole_outline(camera, profile, lead, right_hand, x_start, L, axis_y_mm,
+                                          up + shift, lo + shift)
+        thread_truth["outline_px_raycast"] = outl
+        thread_truth["pinhole_note"] = ("outline found by casting each column's lines of sight "
+                                        "(every 0.5 px); thread ends cut square in the image")
+        img, truth = render([], camera, shapes_px=polys_px, **render_kw)
+        truth["thread"] = thread_truth
+        truth["thread"]["outline_px"] = {k: camera.world_to_px(np.asarray(v)).tolist()
+                                         for k, v in thread_truth["outline_mm"].items()}
+        return img, truth
     img, truth = render([poly_w], camera, **render_kw)
     truth["thread"] = thread_truth
     truth["thread"]["outline_px"] = {k: camera.world_to_px(np.asarray(v)).tolist()

@@ -101,5 +101,5 @@ class ScriptedBackend:
     def measure_tool(self, image, calibration, *, spec=None, internal=False):
         return self._answer("tool", image)
 
-    def measure_height(self, image, calibration, *, reference="point", roi=None):
+    def measure_height(self, image, calibration, *, reference="point", roi=None, axis=None):
         return self._answer("height", image)

@@ -18,9 +18,9 @@ from PyQt5.QtWidgets import (QGraphicsItem, QGraphicsItemGroup, QGraphicsPathIte
 
 from .. import overlays as ov
 from .model import ViewerModel
-from .palette import OVERLAY_DASHED, overlay_colour
+from .palette import OVERLAY_DASHED, OVERLAY_WORDS, overlay_colour
 
-__all__ = ["ImageCanvas", "array_to_qimage", "clip_line_to_rect"]
+__all__ = ["ImageCanvas", "array_to_qimage", "clip_line_to_rect", "legend_html"]
 
 ZOOM_STEP = 1.25
 ZOOM_MIN, ZOOM_MAX = 0.02, 64.0
@@ -68,6 +68,22 @@ def clip_line_to_rect(point, direction, rect: tuple[float, float, float, float])
     if t0 > t1:
         return None
     return (px + t0 * dx, py + t0 * dy), (px + t1 * dx, py + t1 * dy)
+
+
+def legend_html(overlays) -> str:
+    """Key of the overlay styles in use: a line sample (dashed where drawn dashed) in the
+    style's colour, then its meaning in words ('' when nothing is drawn)."""
+    seen = []
+    for o in overlays:
+        st = getattr(o, "style", "")
+        if st in OVERLAY_WORDS and st not in seen and not isinstance(o, (ov.Label, ov.ScaleBar)):
+            seen.append(st)
+    parts = []
+    for st in seen:
+        sample = "\u2012 \u2012 \u2012" if st in OVERLAY_DASHED else "\u2014\u2014\u2014"
+        parts.append(f'<span style="color:{overlay_colour(st)}; font-weight:bold">{sample}</span>'
+                     f'&nbsp;{OVERLAY_WORDS[st]}')
+    return "&nbsp;&nbsp;&nbsp;".join(parts)
 
 
 class _Tag(QGraphicsItem):

@@ -71,7 +71,7 @@ class Backend(Protocol):
     def measure_tool(self, image: np.ndarray, calibration: Any, *, spec: Any = None,
                      internal: bool = False) -> Any: ...
     def measure_height(self, image: np.ndarray, calibration: Any, *, reference: str = "point",
-                       roi: Any = None) -> Any: ...
+                       roi: Any = None, axis: Any = None) -> Any: ...
 
 
 class LibraryBackend:
@@ -100,9 +100,9 @@ class LibraryBackend:
         from ..measure import measure_tool
         return measure_tool(image, calibration, spec=spec, internal=internal)
 
-    def measure_height(self, image, calibration, *, reference="point", roi=None):
+    def measure_height(self, image, calibration, *, reference="point", roi=None, axis=None):
         from ..measure import measure_height
-        return measure_height(image, calibration, reference=reference, roi=roi)
+        return measure_height(image, calibration, reference=reference, roi=roi, axis=axis)
 
 
 def calibration_report(cal: Any, image_name: str = "") -> dict:
@@ -181,7 +181,14 @@ def run_job(backend: Backend, mode: str, image: np.ndarray, calibration: Any,
     elif mode == "tool":
         res = backend.measure_tool(image, calibration, spec=spec, internal=params.internal)
     else:
-        res = backend.measure_height(image, calibration, reference=params.reference, roi=roi)
+        axis = None
+        if params.reference == "line":
+            if not params.axis_path:
+                raise ProfilecheckError("choose the saved axis file first (save one from a "
+                                        "centre-point or bar picture with the camera fixed)")
+            axis = params.axis_path
+        res = backend.measure_height(image, calibration, reference=params.reference, roi=roi,
+                                     axis=axis)
     report = dict(res.to_dict())
     if image_name and report.get("image") in (None, "", "<array>"):
         report["image"] = image_name

@@ -71,12 +71,20 @@ class LivePipeline:
     on_error : callable(message, frame), optional
         Called when ``measure`` raises a :class:`ProfilecheckError` (e.g. tool out of view);
         the pipeline keeps going.
+    workers : int
+        Measure threads (each takes the newest frame; a result older than one already
+        delivered is dropped, so readings never go back in time). numpy and OpenCV release
+        the interpreter lock in their heavy loops, so a second worker can use a second core.
     """
 
     def __init__(self, source: FrameSource, *, on_frame: Callable[[np.ndarray], None],
                  on_lost: Callable[[str], None], measure: Callable[[np.ndarray], Any] | None = None,
                  on_result: Callable[[Any, np.ndarray], None] | None = None,
-                 on_error: Callable[[str, np.ndarray], None] | None = None) -> None:
+                 on_error: Callable[[str, np.ndarray], None] | None = None,
+                 workers: int = 1) -> None:
+        if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
+            raise ValueError(f"workers must be an integer >= 1, got {workers!r}")
+        self.workers = workers
         self.source = source
         self._on_frame = on_frame
         self._on_lost = on_lost
@@ -86,6 +94,8 @@ class LivePipeline:
         self._stop = threading.Event()
         self._cond = threading.Condition()
         self._pending: np.ndarray | None = None
+        self._seq = 0            # number of the pending frame
+        self._delivered = 0      # number of the newest frame whose result went out
         self._threads: list[threading.Thread] = []
         self.frames = RateMeter()
         self.measured = RateMeter()
@@ -102,7 +112,7 @@ class LivePipeline:
             self._cond.notify_all()
         if measure is not None and self.running and not any(
                 t.name == "profilecheck-measure" and t.is_alive() for t in self._threads):
-            self._start_measure_thread()
+            self._start_measure_threads()
 
     def start(self) -> tuple[str, ...]:
         """Open the source and start the threads; returns the source's notes.
@@ -117,13 +127,16 @@ class LivePipeline:
         self._threads.append(t)
         t.start()
         if self._measure is not None:
-            self._start_measure_thread()
+            self._start_measure_threads()
         return self.notes
 
-    def _start_measure_thread(self) -> None:
-        t = threading.Thread(target=self._measure_loop, name="profilecheck-measure", daemon=True)
-        self._threads.append(t)
-        t.start()
+    def _start_measure_threads(self) -> None:
+        self._threads = [t for t in self._threads if t.is_alive()]
+        for _ in range(self.workers):
+            t = threading.Thread(target=self._measure_loop, name="profilecheck-measure",
+                                 daemon=True)
+            self._threads.append(t)
+            t.start()
 
     def stop(self, timeout_s: float = 5.0) -> None:
         """Stop both threads and release the source."""
@@ -154,7 +167,8 @@ class LivePipeline:
             self.frames.tick()
             with self._cond:
                 self._pending = frame
-                self._cond.notify_all()
+                self._seq += 1
+                self._cond.notify()
             self._on_frame(frame)
 
     def _lost(self, message: str) -> None:
@@ -174,15 +188,26 @@ class LivePipeline:
                     self._cond.wait(0.5)
                 if self._stop.is_set() or self._measure is None:
                     return
-                frame, self._pending = self._pending, None
+                frame, self._pending, seq = self._pending, None, self._seq
                 measure = self._measure
             try:
                 result = measure(frame)
             except ProfilecheckError as e:
-                self._on_error(" ".join(str(e).split()), frame)
+                if self._newest(seq):
+                    self._on_error(" ".join(str(e).split()), frame)
                 continue
             except Exception as e:  # keep the live view alive; report the fault in words
-                self._on_error(f"measurement failed ({e.__class__.__name__}: {e})", frame)
+                if self._newest(seq):
+                    self._on_error(f"measurement failed ({e.__class__.__name__}: {e})", frame)
                 continue
             self.measured.tick()
-            self._on_result(result, frame)
+            if self._newest(seq):
+                self._on_result(result, frame)
+
+    def _newest(self, seq: int) -> bool:
+        """True (and recorded) when frame ``seq`` is newer than the last one delivered."""
+        with self._cond:
+            if seq <= self._delivered:
+                return False
+            self._delivered = seq
+            return True

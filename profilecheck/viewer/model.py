@@ -62,6 +62,9 @@ class JobParams:
         Tool job: the tool cuts an internal thread.
     reference : str
         Height job: 'point', 'bar' or 'line'.
+    axis_path : str
+        Height job with reference 'line': the axis file saved earlier from a point or bar
+        picture taken with the camera fixed.
     """
 
     gauge_kind: str = "pin"
@@ -70,6 +73,7 @@ class JobParams:
     designation: str = ""
     internal: bool = False
     reference: str = "point"
+    axis_path: str = ""
 
     def __post_init__(self) -> None:
         if self.gauge_kind not in GAUGE_KINDS:
@@ -203,6 +207,7 @@ class ViewerModel:
         if mode != self._mode:
             self._mode = mode
             self._outcome = None
+            self._outcome_raw = None
             self._emit("mode", "result", "warnings")
 
     @property

@@ -7,7 +7,7 @@ silhouette picture; every meaning is also carried by a word or a line pattern.
 
 from __future__ import annotations
 
-__all__ = ["OVERLAY_COLOURS", "OVERLAY_DASHED", "overlay_colour"]
+__all__ = ["OVERLAY_COLOURS", "OVERLAY_DASHED", "OVERLAY_WORDS", "overlay_colour"]
 
 OVERLAY_COLOURS = {
     "fit": "#ffd21f",          # yellow
@@ -26,3 +26,16 @@ OVERLAY_DASHED = frozenset({"envelope_max", "envelope_min", "axis"})
 def overlay_colour(style: str) -> str:
     """Colour of an overlay style; unknown styles draw like 'info'."""
     return OVERLAY_COLOURS.get(style, OVERLAY_COLOURS["info"])
+
+
+#: What each style means, for the key under the picture.
+OVERLAY_WORDS = {
+    "fit": "fitted line / arc",
+    "axis": "axis (datum)",
+    "edge": "edge points",
+    "envelope_max": "max-material limit",
+    "envelope_min": "min-material limit",
+    "pass": "pass",
+    "fail": "fail",
+    "undecided": "undecided",
+}

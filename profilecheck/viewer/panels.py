@@ -43,7 +43,9 @@ def _wrap_label(text: str = "") -> QLabel:
 class JobPanel(QGroupBox):
     """Choose the job and give what it asks for; Measure starts it (``on_run()``)."""
 
-    def __init__(self, model: ViewerModel, on_run: Callable[[], object], parent=None) -> None:
+    def __init__(self, model: ViewerModel, on_run: Callable[[], object], *,
+                 on_choose_axis: Callable[[], object] = lambda: None,
+                 on_save_axis: Callable[[], object] = lambda: None, parent=None) -> None:
         super().__init__("Job", parent)
         self.model = model
         lay = QVBoxLayout(self)
@@ -101,6 +103,18 @@ class JobPanel(QGroupBox):
         for r in REFERENCES:
             self.reference_box.addItem(REFERENCE_WORDS[r], r)
         f.addRow("Reference", self.reference_box)
+        row = QHBoxLayout()
+        self.axis_edit = QLineEdit()
+        self.axis_edit.setPlaceholderText("saved axis file (.json)")
+        self.axis_button = QPushButton("Choose\u2026")
+        row.addWidget(self.axis_edit, 1)
+        row.addWidget(self.axis_button)
+        self.axis_row = QWidget()
+        self.axis_row.setLayout(row)
+        row.setContentsMargins(0, 0, 0, 0)
+        f.addRow("Axis file", self.axis_row)
+        self.save_axis_button = QPushButton("Save this axis for later tools\u2026")
+        f.addRow(self.save_axis_button)
         f.addRow(_wrap_label("With the camera live, the height is measured on every frame."))
         self.stack.addWidget(w)
 
@@ -130,10 +144,14 @@ class JobPanel(QGroupBox):
         self.reference_box.currentIndexChanged.connect(
             lambda i: model.set_params(reference=self.reference_box.itemData(i)))
         self.run_button.clicked.connect(lambda: on_run())
+        self.axis_edit.textEdited.connect(lambda t: model.set_params(axis_path=t.strip()))
+        self.axis_button.clicked.connect(lambda: on_choose_axis())
+        self.save_axis_button.clicked.connect(lambda: on_save_axis())
         # model -> widget
         model.subscribe("mode", self._show_mode)
         model.subscribe("params", self._show_params)
         model.subscribe("busy", self._show_busy)
+        model.subscribe("result", self._show_axis)
         self._show_mode()
         self._show_params()
         self._show_busy()
@@ -182,10 +200,20 @@ class JobPanel(QGroupBox):
                            (self.tool_spec_edit, p.designation)):
             if edit.text() != text:
                 edit.setText(text)
+        if self.axis_edit.text() != p.axis_path:
+            self.axis_edit.setText(p.axis_path)
+        self.axis_row.setEnabled(p.reference == "line")
+        self._show_axis()
         if self.internal_box.isChecked() != p.internal:
             self.internal_box.blockSignals(True)
             self.internal_box.setChecked(p.internal)
             self.internal_box.blockSignals(False)
+
+    def _show_axis(self) -> None:
+        out = self.model.outcome
+        ok = (out is not None and out.mode == "height"
+              and getattr(out.result, "axis_line", None) is not None)
+        self.save_axis_button.setEnabled(ok)
 
     def _show_busy(self) -> None:
         self.busy_bar.setVisible(self.model.busy)
@@ -216,6 +244,7 @@ class ReadingsPanel(QGroupBox):
         f.setPointSize(f.pointSize() + 4)
         f.setBold(True)
         self.overall_label.setFont(f)
+        self.overall_label.setWordWrap(True)
         lay.addWidget(self.overall_label)
         self.table = QTableWidget(0, len(self.COLUMNS))
         self.table.setHorizontalHeaderLabels(self.COLUMNS)
@@ -223,7 +252,7 @@ class ReadingsPanel(QGroupBox):
         self.table.setEditTriggers(QTableWidget.NoEditTriggers)
         self.table.setSelectionMode(QTableWidget.NoSelection)
         self.table.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeToContents)
-        self.table.horizontalHeader().setStretchLastSection(True)
+        self.table.horizontalHeader().setSectionResizeMode(0, QHeaderView.Stretch)
         self.table.verticalHeader().setSectionResizeMode(QHeaderView.ResizeToContents)
         self.table.setWordWrap(True)
         tf = self.table.font()
@@ -241,6 +270,7 @@ class ReadingsPanel(QGroupBox):
         for ev in ("result", "warnings"):
             model.subscribe(ev, self._show_result if ev == "result" else self._show_warnings)
         model.subscribe("calibration", self._show_calibration)
+        model.subscribe("result", self._show_calibration)
         self._show_result()
         self._show_warnings()
         self._show_calibration()
@@ -267,7 +297,7 @@ class ReadingsPanel(QGroupBox):
             return
         key, look = overall_look(report)
         if out.mode == "calibrate":
-            text = "\u2714 CALIBRATED (check the scale against a second gauge)"
+            text = "\u2714 CALIBRATED"
             self.overall_label.setStyleSheet("background: #d0d0d0; color: #000000;")
         elif key == "none":
             text = f"{look.symbol} MEASURED, {look.word}"
@@ -297,7 +327,10 @@ class ReadingsPanel(QGroupBox):
         self.calibration_label.setText(
             f"Calibration: {cal.mm_per_px:.6f} mm/px \u00b1 {ppm:.0f} ppm, {w} x {h} px"
             f"{gtxt}" + (f", camera '{cal.label}'" if cal.label else "")
-            + (", telecentric view assumed" if getattr(cal, "lens", None) is None else ", lens model"))
+            + (", telecentric view assumed" if getattr(cal, "lens", None) is None else ", lens model")
+            + (". Check a new scale against a second gauge before trusting it."
+               if self.model.outcome is not None and self.model.outcome.mode == "calibrate"
+               else ""))
 
 
 class CameraPanel(QGroupBox):

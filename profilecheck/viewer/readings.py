@@ -73,16 +73,27 @@ def _num(v: Any) -> float | None:
     return f if math.isfinite(f) else None
 
 
+def _decimals(u: float | None, least: int, most: int) -> int:
+    """Decimals that show U to two significant digits, within [least, most]
+    (common practice for quoting an uncertainty, JCGM 100:2008 7.2.6)."""
+    if u is None or not u > 0 or not math.isfinite(u):
+        return least
+    return max(least, min(most, 1 - math.floor(math.log10(u))))
+
+
 def mm_text(value: float, u: float | None, unit: str = "mm") -> str:
-    """'12.3456 \u00b1 0.0040 mm' (lengths, 4 decimals), '29.95 \u00b1 0.12\u00b0' (angles)."""
+    """'12.3456 \u00b1 0.0040 mm' (lengths, at least 4 decimals, more when U needs them to
+    show two digits), '29.95 \u00b1 0.12\u00b0' (angles, at least 2)."""
     if unit == "deg":
-        s = f"{value:.2f}"
-        return f"{s} \u00b1 {u:.2f}\u00b0" if u is not None else f"{s}\u00b0"
+        d = _decimals(u, 2, 4)
+        s = f"{value:.{d}f}"
+        return f"{s} \u00b1 {u:.{d}f}\u00b0" if u is not None else f"{s}\u00b0"
     if unit == "mm/px":
         return f"{value:.6f} \u00b1 {u:.6f} mm/px" if u is not None else f"{value:.6f} mm/px"
     if unit != "mm":
         return f"{value:.4g} \u00b1 {u:.2g} {unit}" if u is not None else f"{value:.4g} {unit}"
-    return f"{value:.4f} \u00b1 {u:.4f} mm" if u is not None else f"{value:.4f} mm"
+    d = _decimals(u, 4, 6)
+    return f"{value:.{d}f} \u00b1 {u:.{d}f} mm" if u is not None else f"{value:.4f} mm"
 
 
 def inch_text(value_mm: float, u_mm: float | None, unit: str = "mm") -> str:
@@ -104,7 +115,9 @@ def inch_text(value_mm: float, u_mm: float | None, unit: str = "mm") -> str:
     v = value_mm / MM_PER_INCH
     if u_mm is None:
         return f"{v:.5f} in"
-    return f"{v:.5f} \u00b1 {u_mm / MM_PER_INCH:.5f} in"
+    ui = u_mm / MM_PER_INCH
+    d = _decimals(ui, 5, 7)
+    return f"{v:.{d}f} \u00b1 {ui:.{d}f} in"
 
 
 def _limits_text(lo: float | None, hi: float | None, unit: str) -> str:

@@ -67,8 +67,8 @@ def save_outcome(stem: str | Path, outcome, raw: np.ndarray, image: np.ndarray, 
         The frame as read from the file or camera.
     image : ndarray
         The grey picture in [0, 1] the job measured (drawn under the overlays).
-    spec : ThreadSpec, optional
-        Passed to the job sheet.
+    spec : ThreadSpec or dict, optional
+        The thread specification, shown on the job sheet.
 
     Returns
     -------
@@ -97,7 +97,10 @@ def save_outcome(stem: str | Path, outcome, raw: np.ndarray, image: np.ndarray, 
         except ImportError:
             notes.append("job sheet not written: the report package has no job sheet yet")
         else:
-            sheet_html = render_sheet(outcome.report, annotated, spec=spec)
+            if spec is not None and hasattr(spec, "to_dict"):
+                spec = spec.to_dict()
+            sheet_html = render_sheet(outcome.report, annotated,
+                                      spec=spec if isinstance(spec, dict) else None)
     if outcome.mode == "calibrate" and outcome.calibration is not None:
         import json
         text = json.dumps(outcome.calibration.to_dict(), indent=2, sort_keys=True,

@@ -64,7 +64,8 @@ class MainWindow(QMainWindow):
         self.runner = JobRunner(self.model, self.backend, self)
         self.live = LiveBridge(self.model, self.backend, source_factory or self._no_camera, self)
         self.canvas = ImageCanvas(self.model)
-        self.job_panel = JobPanel(self.model, self.run_job)
+        self.job_panel = JobPanel(self.model, self.run_job, on_choose_axis=self._ask_axis,
+                                  on_save_axis=self._ask_save_axis)
         self.readings_panel = ReadingsPanel(self.model)
         self.camera_panel = CameraPanel(self.model, on_start=self.start_camera,
                                         on_stop=self.stop_camera)
@@ -76,19 +77,22 @@ class MainWindow(QMainWindow):
         scroll = QScrollArea()
         scroll.setWidgetResizable(True)
         scroll.setWidget(side)
-        scroll.setMinimumWidth(700)
+        scroll.setMinimumWidth(750)
         scroll.setMaximumWidth(820)
         left = QWidget()
         ll = QVBoxLayout(left)
         ll.setContentsMargins(0, 0, 0, 0)
         ll.addWidget(self.camera_panel.safety_label)
         ll.addWidget(self.canvas, 1)
+        self.legend_label = QLabel()
+        self.legend_label.setStyleSheet("background: #202428; color: #e0e0e0; padding: 3px;")
+        ll.addWidget(self.legend_label)
         split = QSplitter(Qt.Horizontal)
         split.addWidget(left)
         split.addWidget(scroll)
         split.setStretchFactor(0, 1)
         split.setStretchFactor(1, 0)
-        split.setSizes([860, 700])
+        split.setSizes([820, 760])
         self.setCentralWidget(split)
         self.status_label = QLabel()
         self.statusBar().addWidget(self.status_label, 1)
@@ -96,11 +100,13 @@ class MainWindow(QMainWindow):
         self.model.subscribe("status", self._show_status)
         self.model.subscribe("image", self._show_title)
         self.model.subscribe("result", self._enable_save)
+        self.model.subscribe("result", self._show_legend)
         self.model.subscribe("calibration", self._enable_save)
         self._show_status()
         self._show_title()
         self._enable_save()
-        self.resize(1560, 940)
+        self._show_legend()
+        self.resize(1580, 940)
 
     @staticmethod
     def _no_camera() -> FrameSource:
@@ -138,6 +144,12 @@ class MainWindow(QMainWindow):
     def _show_title(self) -> None:
         name = self.model.image_name
         self.setWindowTitle(f"profilecheck viewer \u2013 {name}" if name else "profilecheck viewer")
+
+    def _show_legend(self) -> None:
+        from .canvas import legend_html
+        html = legend_html(self.model.overlays)
+        self.legend_label.setText(html)
+        self.legend_label.setVisible(bool(html))
 
     def _enable_save(self) -> None:
         out = self.model.outcome
@@ -220,6 +232,34 @@ class MainWindow(QMainWindow):
         self.model.set_calibration(cal, str(path))
         self.model.set_status(f"Calibration saved to {path}.")
         return True
+
+    def save_axis(self, path: str | Path) -> bool:
+        """Save the axis found by the last height job (point or bar) for later 'line' jobs."""
+        out = self.model.outcome
+        axis = None if out is None else getattr(out.result, "axis_line", None)
+        if axis is None:
+            self.model.set_status("No axis to save: measure the height against a centre point "
+                                  "or a bar first.")
+            return False
+        from ..measure.height import save_axis
+        try:
+            save_axis(axis, path)
+        except ProfilecheckError as e:
+            self.model.set_status(f"Axis not saved: {' '.join(str(e).split())}")
+            return False
+        self.model.set_params(axis_path=str(path))
+        self.model.set_status(f"Axis saved to {path}; keep the camera where it is.")
+        return True
+
+    def _ask_axis(self) -> None:
+        p, _ = QFileDialog.getOpenFileName(self, "Saved axis", "", "Axis (*.json)")
+        if p:
+            self.model.set_params(axis_path=p)
+
+    def _ask_save_axis(self) -> None:
+        p, _ = QFileDialog.getSaveFileName(self, "Save axis", "", "Axis (*.json)")
+        if p:
+            self.save_axis(p)
 
     def _ask_open(self) -> None:
         p, _ = QFileDialog.getOpenFileName(self, "Open picture", "",
