@@ -126,7 +126,34 @@ def main(argv=None) -> int:
                 print(f"  {bucket:6s} {k:16s} {w:7.3f}  target {lim:g}  {'ok' if ok else 'MISSED'}"
                       f"  ratio {w / lim:.2f}")
     print(f"{n_miss} target(s) missed")
+    print()
+    check_samples()
     return 0
+
+
+def check_samples() -> None:
+    """Verdict of every bundled thread sample against the scenario's expectation."""
+    from pathlib import Path
+
+    from profilecheck.calibration import load_calibration
+    from profilecheck.scenario import thread as sc
+
+    root = Path(__file__).resolve().parents[1]
+    print("bundled samples (sample_images/, demo calibrations):")
+    n_bad = 0
+    for name, part, cam, *_rest, expect, _title in sc.SAMPLES:
+        img = root / "sample_images" / f"{name}.png"
+        cal_path = root / "calibration" / sc._CAL[id(cam)]
+        if not img.is_file() or not cal_path.is_file():
+            print(f"  {name:16s} missing (run python -m profilecheck.scenario)")
+            continue
+        try:
+            got = measure_thread(str(img), load_calibration(cal_path), spec=part["spec"]).verdict
+        except ProfilecheckError as e:
+            got = "refused"
+        n_bad += got != expect
+        print(f"  {name:16s} {got:10s} expected {expect:10s} {'ok' if got == expect else 'WRONG'}")
+    print(f"{n_bad} sample verdict(s) wrong")
 
 
 if __name__ == "__main__":

@@ -89,10 +89,11 @@ def test_tilted_line_of_sight_cancels_on_one_edge_only():
     assert_allclose(s_bot / s0, 4.0, rtol=0.03)
 
 
-def _helical_outline(pitch, half_deg, d_major, n_teeth):
-    """Top-edge silhouette of an ISO basic-profile helicoid seen square to the axis,
-    by brute force over the turn angle (analytic geometry): returns (N, 2) mm points with
-    y the radius, and the axial-section truth."""
+def _helical_outline(pitch, half_deg, d_major, n_teeth, tan_gamma=0.0):
+    """Top-edge silhouette of an ISO basic-profile helicoid seen square to the axis (or
+    with the line of sight inclined toward +x by atan(tan_gamma): a point at depth z moves
+    by z tan_gamma in the measurement plane), by brute force over the turn angle (analytic
+    geometry): returns (N, 2) mm points with y the radius, and the axial-section truth."""
     P = pitch
     th = math.radians(half_deg)
     T = math.tan(th)
@@ -111,8 +112,9 @@ def _helical_outline(pitch, half_deg, d_major, n_teeth):
         for y in ys:
             rho = y / np.cos(phi)
             ok = rho <= r_maj
-            xl = x0 + T * (rho[ok] - d2 / 2) + a * phi[ok]
-            xr = x0 + P / 2 - T * (rho[ok] - d2 / 2) + a * phi[ok]
+            z = y * np.tan(phi[ok]) * tan_gamma
+            xl = x0 + T * (rho[ok] - d2 / 2) + a * phi[ok] + z
+            xr = x0 + P / 2 - T * (rho[ok] - d2 / 2) + a * phi[ok] + z
             left.append((xl.min(), y))
             right.append((xr.max(), y))
         xlc = x0 + T * (r_maj - d2 / 2)
@@ -141,6 +143,22 @@ def test_correction_recovers_axial_section_from_helical_outline():
     assert_allclose(math.degrees(cor.mean_angle("left")[0]), 30.0, atol=0.01)
     assert_allclose(math.degrees(cor.mean_angle("right")[0]), 30.0, atol=0.01)
     assert_allclose(cor.pitch, 1.0, atol=1e-5)
+
+
+def test_correction_with_inclined_line_of_sight():
+    # A ray inclined 2 deg toward +x (a lens, off-centre) adds to the helix on this edge: the raw
+    # outline errs more; the per-flank correction with that inclination recovers d2/2.
+    t = math.tan(math.radians(2.0))
+    xy, d2, H = _helical_outline(1.0, 30, 6.0, 6, tan_gamma=t)
+    raw = analyse_limb(xy, sigma_e_mm=0.002)
+    assert (raw.pitch_line_y - d2 / 2) * 2 > 0.05  # far beyond the 28 um of a square view
+
+    def shift(x, y, side):
+        return flank_shift_mm(y, 1.0, TH30, side=side, tan_gamma=t, top_edge=True)
+
+    cor = analyse_limb(xy, sigma_e_mm=0.002, flank_shift=shift)
+    assert_allclose(cor.pitch_line_y, d2 / 2, atol=0.0005)
+    assert_allclose(math.degrees(cor.mean_angle("left")[0]), 30.0, atol=0.01)
 
 
 def test_bad_arguments():

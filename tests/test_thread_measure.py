@@ -132,6 +132,20 @@ def test_single_edge_with_spec_corrects_helix(unequal_image):
     assert_allclose(r.measurements["flank_left"].value, 27.0, atol=0.1)
 
 
+def test_lens_calibration_path(m6_image):
+    # A lens with a very long focal length is nearly telecentric: the per-flank line of
+    # sight is then almost square and the result must match the parallel-view one.
+    from profilecheck.calibration import Lens
+    h, w = m6_image.shape
+    tele = measure_thread(m6_image, cal_for(m6_image, 0.0125), spec="M6x1-6g")
+    lens = Lens(1e7, 1e7, (w - 1) / 2, (h - 1) / 2, working_distance_mm=1e7 * 0.0125)
+    cal = Calibration(0.0125, 1.25e-7, (w, h), blur_px=1.2, lens=lens)
+    r = measure_thread(m6_image, cal, spec="M6x1-6g")
+    assert "lens" in r.helix["model"]
+    assert_allclose(r.measurements["pitch_diameter"].value,
+                    tele.measurements["pitch_diameter"].value, atol=2e-4)
+
+
 def test_blank_image_refused():
     img = np.full((200, 300), 0.85)
     with pytest.raises(MeasurementError):

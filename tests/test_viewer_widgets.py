@@ -191,3 +191,18 @@ def test_result_for_a_replaced_picture_is_dropped(qtbot, win):
     with qtbot.waitSignal(win.runner.failed, timeout=10000):
         win.backend.release.set()
     assert win.model.outcome is None and "changed while measuring" in win.status_label.text()
+
+
+def test_saving_a_calibration_job_writes_the_calibration_file(qtbot, win, tmp_path):
+    import json
+
+    from profilecheck.calibration import load_calibration
+    win.model.set_mode("calibrate")
+    win.model.set_params(gauge_size_mm=6.0)
+    _run(qtbot, win)
+    saved = win.save_results(tmp_path / "cal_job")
+    assert saved is not None and saved.sheet is None      # no job sheet for a calibration
+    assert load_calibration(saved.json).mm_per_px == 0.005  # the file loads as a calibration
+    assert json.loads(saved.json.read_text())["image_size"] == [160, 120]
+    assert win.save_calibration(tmp_path / "bench.json")
+    assert win.model.calibration_path == str(tmp_path / "bench.json")

@@ -239,6 +239,9 @@ def atomic_write_text(path: str | os.PathLike[str], text: str) -> None:
         raise CalibrationError(f"{p}: folder {parent} does not exist")
     fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=parent)
     try:
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes 0600; honour the umask like open() would
         with os.fdopen(fd, "w", encoding="utf-8") as fh:
             fh.write(text)
             fh.flush()

@@ -46,7 +46,7 @@ _PILOT_N = 300
 _NU_POOL = 10.0            # prior degrees of freedom of the pooled noise in each point's std
 _RESID_P = 0.999           # chi-square quantile for the residual test
 _CLIP_WARN = 1e-4
-_NOISE_FLOOR_REL = 3e-3
+_NOISE_FLOOR_REL = 3e-3     # of the (flattened, unit) contrast
 
 
 def _check_roi(roi, shape):
@@ -229,6 +229,10 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     from skimage.measure import find_contours
 
     fs = cv2.GaussianBlur(sil.flat, (0, 0), _SEED_SMOOTH_PX, borderType=cv2.BORDER_REPLICATE)
+    # fits run on the flattened image: a smooth backlight gradient (vignetting) across a
+    # profile window would otherwise tilt the bright plateau and pull the edge
+    work = sil.flat
+    scale_img = np.maximum(sil.background - sil.dark_level, 1e-9)
     seeds = seeds_from_contours(find_contours(fs, 0.5), min_vertices=min_contour_px)
     n_seed = len(seeds.pos)
     if n_seed == 0:
@@ -241,21 +245,25 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         usable = np.arange(n_seed)
     pilot = usable[np.linspace(0, len(usable) - 1, min(_PILOT_N, len(usable))).astype(int)]
     hw_p = np.full(len(pilot), _PILOT_HALF_WINDOW)
-    pr, _, _, p_enough, _, _ = _fit_group(lin, fs, censored, seeds, pilot, 1.0, hw=hw_p)
+    pr, _, _, p_enough, _, _ = _fit_group(work, fs, censored, seeds, pilot, 1.0, hw=hw_p)
     sb_p = pr.s * seeds.n_axis[pilot]
-    good_p = pr.converged & p_enough & np.isfinite(sb_p) & (pr.C > min_contrast)
+    good_p = pr.converged & p_enough & np.isfinite(sb_p) & (pr.C > 0.3)
     sigma_b = float(np.median(sb_p[good_p])) if good_p.sum() >= 3 else 1.0
     sigma_b = min(max(sigma_b, 0.2), 8.0)
 
     idx = np.arange(n_seed)
-    res, start, direction, enough, hw, thin = _fit_group(lin, fs, censored, seeds, idx, sigma_b)
+    res, start, direction, enough, hw, thin = _fit_group(work, fs, censored, seeds, idx, sigma_b)
 
     n_a = seeds.n_axis
     sb = res.s * n_a
     ok = res.converged & enough & np.isfinite(res.x0) & np.isfinite(res.var_x0_unit)
     seed_x0 = seeds.pos - start
     ok &= np.abs(res.x0 - seed_x0) <= 2.0
-    ok &= res.C >= max(min_contrast, 0.3 * sil.contrast)
+    seed_rc = np.where(seeds.along_x[:, None], np.c_[seeds.line, np.round(seeds.pos)],
+                       np.c_[np.round(seeds.pos), seeds.line]).astype(int)
+    seed_rc = np.clip(seed_rc, 0, np.array(work.shape) - 1)
+    scale_seed = scale_img[seed_rc[:, 0], seed_rc[:, 1]]
+    ok &= (res.C >= 0.3) & (res.C * scale_seed >= min_contrast)
     ok &= ~seeds.corner
     if ok.sum() >= 3:
         med_sb = float(np.median(sb[ok]))
@@ -272,7 +280,7 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     pooled = max(pooled, 1e-14)
     # residual test, with a floor so that residuals far below any camera's noise (0.3 % of
     # the contrast, about half an 8-bit code) never reject a point (rendered, noise-free images)
-    s2_test = max(pooled, (_NOISE_FLOOR_REL * sil.contrast) ** 2)
+    s2_test = max(pooled, _NOISE_FLOOR_REL ** 2)
     ok &= s2 <= s2_test * chi2.ppf(_RESID_P, dof) / dof
 
     keep = np.flatnonzero(ok)
@@ -315,7 +323,7 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     rss_k, dof_k = res.rss[keep].copy(), dof[keep].copy()
     if len(redo):
         gi = keep[redo]
-        r2, st2, _, en2, _, _ = _fit_group(lin, fs, censored, seeds, gi, sigma_b, hw=hw[gi],
+        r2, st2, _, en2, _, _ = _fit_group(work, fs, censored, seeds, gi, sigma_b, hw=hw[gi],
                                         t=t_new[redo], x0=x0_k[redo], s0=s_k[redo])
         good2 = r2.converged & en2 & (np.abs(r2.x0 - x0_k[redo]) < 0.5)
         ri = redo[good2]
@@ -344,7 +352,10 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         warnings.append(f"{n_dropped} of {n_seed} edge points were dropped (corners, junctions, "
                         "narrow gaps, dust or noise): check focus, cleanliness and lighting")
     xy = xy + np.array([x_off, y_off], dtype=np.float64)
-    return EdgeSet(xy=xy, normal=normal, sigma_px=sigma_px, std_px=std_px, dark=B_k,
-                   bright=B_k + C_k, contour=contour.astype(int), closed=closed,
-                   n_dropped=int(n_dropped), noise_std=float(math.sqrt(pooled)),
+    sc = scale_seed[keep]
+    dark_lv = sil.dark_level + B_k * sc
+    bright_lv = sil.dark_level + (B_k + C_k) * sc
+    return EdgeSet(xy=xy, normal=normal, sigma_px=sigma_px, std_px=std_px, dark=dark_lv,
+                   bright=bright_lv, contour=contour.astype(int), closed=closed,
+                   n_dropped=int(n_dropped), noise_std=float(math.sqrt(pooled) * np.median(sc)),
                    warnings=tuple(warnings), image_shape=tuple(int(s) for s in shape))

@@ -17,6 +17,8 @@ _API = {
     "ThreadResult": ".thread",
     "measure_tool": ".tool",
     "ToolResult": ".tool",
+    "measure_squareness": ".tool",
+    "SquarenessResult": ".tool",
     "measure_height": ".height",
     "HeightResult": ".height",
 }

@@ -132,6 +132,9 @@ class ImageCanvas(QGraphicsView):
         self._pix.setTransformationMode(Qt.FastTransformation)  # show true pixels when zoomed
         self._pix.setZValue(0)
         self.scene().addItem(self._pix)
+        self._hint = _Tag("Open a picture (File \u2192 Open picture\u2026) or start the camera.",
+                          QColor("#e0e0e0"))
+        self.scene().addItem(self._hint)
         self._group: QGraphicsItemGroup | None = None
         self._size: tuple[int, int] | None = None
         self._auto_fit = True
@@ -144,9 +147,11 @@ class ImageCanvas(QGraphicsView):
     # -- model -> screen -------------------------------------------------------------------
     def _on_image(self) -> None:
         a = self.model.raw_frame
+        self._hint.setVisible(a is None)
         if a is None:
             self._pix.setPixmap(QPixmap())
             self._size = None
+            self.scene().setSceneRect(self._hint.boundingRect())
             return
         self._pix.setPixmap(QPixmap.fromImage(array_to_qimage(a)))
         size = (int(a.shape[1]), int(a.shape[0]))

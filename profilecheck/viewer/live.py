@@ -165,11 +165,11 @@ class LivePipeline:
             if self._stop.is_set():
                 return
             self.frames.tick()
+            self._on_frame(frame)  # first to the screen, so a result never precedes its frame
             with self._cond:
                 self._pending = frame
                 self._seq += 1
                 self._cond.notify()
-            self._on_frame(frame)
 
     def _lost(self, message: str) -> None:
         self._stop.set()

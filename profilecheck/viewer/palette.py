@@ -13,11 +13,11 @@ OVERLAY_COLOURS = {
     "fit": "#ffd21f",          # yellow
     "axis": "#00c8c8",         # cyan
     "edge": "#c050ff",         # purple
-    "envelope_max": "#5aa0ff", # light blue, dashed
+    "envelope_max": "#56b4e9", # sky blue, dashed
     "envelope_min": "#ff9a3c", # light orange, dashed
-    "pass": "#2a6fdb",
-    "fail": "#e8871e",
-    "undecided": "#8a8a8a",
+    "pass": "#7ab0ff",         # lighter than the panels' pass blue: read on the dark tags
+    "fail": "#ffa040",
+    "undecided": "#c0c0c0",
     "info": "#ffffff",
 }
 OVERLAY_DASHED = frozenset({"envelope_max", "envelope_min", "axis"})

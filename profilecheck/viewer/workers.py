@@ -226,6 +226,9 @@ class LiveBridge(QObject):
         self._result_pending.clear()
         if self.model.mode != "height" or self.pipeline is None:  # stopped or lost meanwhile
             return
+        if self.model.raw_frame is None:  # the screen dropped every frame so far
+            self.model.set_image(raw=frame, name=f"live: {self.model.camera_label}",
+                                 keep_result=True)
         self.model.set_outcome(outcome, raw=frame)
         self.model.set_status(f"Live height: measured in {outcome.elapsed_s * 1000:.0f} ms.")
         self.measured.emit(outcome)
