@@ -19,8 +19,6 @@ import math
 import sys
 import time
 
-import numpy as np
-
 from profilecheck import synth
 from profilecheck.calibration import Calibration
 from profilecheck.errors import ProfilecheckError

@@ -31,6 +31,7 @@ import json
 import math
 import os
 import sqlite3
+import time
 from datetime import datetime, timezone
 from pathlib import Path
 from typing import Any, Mapping
@@ -191,7 +192,19 @@ class InspectionLog:
     def _setup(self) -> None:
         con = self._con
         con.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
-        mode = con.execute("PRAGMA journal_mode = WAL").fetchone()[0]
+        # Another process creating the same new file may hold the lock: the pragma then
+        # answers with the old mode instead of waiting, so ask again until the busy timeout.
+        deadline = time.monotonic() + BUSY_TIMEOUT_S
+        while True:
+            try:
+                mode = con.execute("PRAGMA journal_mode = WAL").fetchone()[0]
+            except sqlite3.OperationalError as e:
+                if "locked" not in str(e) and "busy" not in str(e):
+                    raise
+                mode = "locked"
+            if str(mode).lower() == "wal" or time.monotonic() > deadline:
+                break
+            time.sleep(0.02)
         if str(mode).lower() != "wal":
             raise LogError(f"log {self.path}: cannot switch to WAL mode (got {mode}); "
                            "is it on a network drive?")

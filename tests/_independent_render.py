@@ -4,8 +4,10 @@ Written apart from ``profilecheck.synth`` (nothing of profilecheck is imported h
 that the measurements are judged on images they were not built with. The pipeline:
 
 1. exact polygons in world millimetres (world y up; the camera flips it to image rows),
-2. rasterised on a supersampled grid (``ss`` x ``ss`` samples per pixel) with
-   ``cv2.fillPoly`` using the ``shift`` argument (vertices to 1/16 of a sample),
+2. rasterised on a supersampled grid (``ss`` columns x ``ss_y`` rows per pixel) by an
+   even-odd scanline fill written here: exact coverage along each sample row, rows point
+   sampled (``cv2.fillPoly`` was not used: it also fills the samples its outline passes
+   through, which widens every polygon by about one sample),
 3. Gaussian blur applied in the supersampled domain (sigma given in image pixels),
 4. box-averaged down to pixels (each pixel = mean of its ss x ss samples),
 5. backlight vignetting, cos^4 law: factor cos^4(atan(t * r / r_corner)) with ``t`` set so
@@ -14,9 +16,9 @@ that the measurements are judged on images they were not built with. The pipelin
 7. optional gamma encoding ``I ** (1 / gamma)`` and optional JPEG, 8-bit output.
 
 Pixel convention (as docs/conventions.md): pixel (row 0, col 0) covers x, y in
-[-0.5, 0.5), integer coordinates at pixel centres.  Known limit of step 2: the sample
-grid quantises an edge that is exactly parallel to a pixel axis to 1/ss px (error at most
-1/(2 ss) px, 0.06 px at ss = 8); tilted edges average it out.
+[-0.5, 0.5), integer coordinates at pixel centres.  Known limit of step 2: an edge
+exactly parallel to the image rows is quantised to 1/ss_y px (error at most 1/(2 ss_y) px,
+0.06 px at 8); tilted edges average it out.
 
 Thread silhouettes are made by brute force: for each image position along the axis the
 outline radius is the largest projected height ``R(x - a phi) cos(phi)`` over a dense set
@@ -62,25 +64,84 @@ class View:
 
 
 # ------------------------------------------------------------------ raster pipeline
-def coverage(polys_px, size, *, ss: int = 8, blur_px: float = 1.0) -> np.ndarray:
-    """Dark-area fraction per pixel (float64, (h, w)) of polygons given in image px."""
-    w, h = size
-    shift = 4
-    big = np.zeros((h * ss, w * ss), np.uint8)
-    pts = []
+def _spans(polys_px, ss_x: int, ss_y: int, n_rows: int):
+    """Even-odd scanline spans of each polygon on sample rows: (row, u_start, u_end).
+
+    Sample row k has its centre at y = -0.5 + (k + 0.5) / ss_y px; u = (x + 0.5) * ss_x is
+    the x position in sample units (sample column j covers u in [j, j + 1)).
+    An edge counts on a row when min(y0, y1) <= y_row < max(y0, y1) (half-open, so a
+    vertex is never counted twice).
+    """
+    rows_all, ua_all, ub_all = [], [], []
     for p in polys_px:
         p = np.asarray(p, dtype=float)
-        # sample centre k of pixel i sits at i - 0.5 + (k + 0.5) / ss; in sample units
-        # u = (x + 0.5) * ss - 0.5 puts every sample centre on an integer.
-        u = ((p + 0.5) * ss - 0.5) * (1 << shift)
-        pts.append(np.round(u).astype(np.int32).reshape(-1, 1, 2))
-    cv2.fillPoly(big, pts, 255, lineType=cv2.LINE_8, shift=shift)
-    f = big.astype(np.float32) / 255.0
+        q = np.roll(p, -1, axis=0)
+        y0, y1 = p[:, 1], q[:, 1]
+        lo, hi = np.minimum(y0, y1), np.maximum(y0, y1)
+        k0 = np.ceil((lo + 0.5) * ss_y - 0.5).astype(np.int64)
+        k1 = np.ceil((hi + 0.5) * ss_y - 0.5).astype(np.int64)  # first row not crossed
+        k0 = np.clip(k0, 0, n_rows)
+        k1 = np.clip(k1, 0, n_rows)
+        cnt = np.maximum(k1 - k0, 0)
+        if cnt.sum() == 0:
+            continue
+        e = np.repeat(np.arange(len(p)), cnt)
+        start = np.repeat(k0, cnt)
+        off = np.arange(cnt.sum()) - np.repeat(np.cumsum(cnt) - cnt, cnt)
+        k = start + off
+        yc = -0.5 + (k + 0.5) / ss_y
+        t = (yc - y0[e]) / (y1[e] - y0[e])
+        x = p[e, 0] + t * (q[e, 0] - p[e, 0])
+        order = np.lexsort((x, k))
+        k, x = k[order], x[order]
+        # even-odd: consecutive crossings on the same row pair up
+        assert len(k) % 2 == 0
+        ka, kb = k[0::2], k[1::2]
+        assert np.all(ka == kb), "open polygon"
+        rows_all.append(ka)
+        ua_all.append((x[0::2] + 0.5) * ss_x)
+        ub_all.append((x[1::2] + 0.5) * ss_x)
+    if not rows_all:
+        return np.zeros(0, np.int64), np.zeros(0), np.zeros(0)
+    return np.concatenate(rows_all), np.concatenate(ua_all), np.concatenate(ub_all)
+
+
+def coverage(polys_px, size, *, ss: int = 8, ss_y: int | None = None,
+             blur_px: float = 1.0) -> np.ndarray:
+    """Dark-area fraction per pixel (float64, (h, w)) of polygons given in image px.
+
+    The supersampled grid has ``ss`` columns and ``ss_y`` (default ``ss``) rows per
+    pixel; coverage along each sample row is exact (fractional at both span ends), rows
+    are point samples.  Polygons must not overlap (coverage is clipped at 1).
+    """
+    w, h = size
+    ssy = ss if ss_y is None else ss_y
+    n_rows, n_cols = h * ssy, w * ss
+    k, ua, ub = _spans(polys_px, ss, ssy, n_rows)
+    ua = np.clip(ua, 0, n_cols)
+    ub = np.clip(ub, 0, n_cols)
+    keep = ub > ua
+    k, ua, ub = k[keep], ua[keep], ub[keep]
+    fa = np.floor(ua).astype(np.int64)
+    fb = np.floor(ub).astype(np.int64)
+    # first differences of the per-sample coverage of each span (exact at both ends):
+    # c[fa] = fa + 1 - ua, c[fa+1 .. fb-1] = 1, c[fb] = ub - fb  (c[fa] = ub - ua if fa == fb)
+    d = np.zeros((n_rows, n_cols + 2), np.float32)
+    same = fa == fb
+    s, o = same, ~same
+    np.add.at(d, (k[s], fa[s]), (ub[s] - ua[s]).astype(np.float32))
+    np.add.at(d, (k[s], fa[s] + 1), (ua[s] - ub[s]).astype(np.float32))
+    np.add.at(d, (k[o], fa[o]), (fa[o] + 1 - ua[o]).astype(np.float32))
+    np.add.at(d, (k[o], fa[o] + 1), (ua[o] - fa[o]).astype(np.float32))
+    np.add.at(d, (k[o], fb[o]), (ub[o] - fb[o] - 1).astype(np.float32))
+    np.add.at(d, (k[o], fb[o] + 1), (fb[o] - ub[o]).astype(np.float32))
+    f = np.cumsum(d, axis=1, dtype=np.float32)[:, :n_cols]
+    np.clip(f, 0.0, 1.0, out=f)
     if blur_px > 0:
-        f = cv2.GaussianBlur(f, (0, 0), sigmaX=blur_px * ss, sigmaY=blur_px * ss,
+        f = cv2.GaussianBlur(f, (0, 0), sigmaX=blur_px * ss, sigmaY=blur_px * ssy,
                              borderType=cv2.BORDER_REPLICATE)
-    f = f.reshape(h, ss, w, ss).mean(axis=(1, 3), dtype=np.float64)
-    return f
+    # box average of each ss x ss_y block (INTER_AREA at an integer factor is exactly that)
+    return cv2.resize(f, (w, h), interpolation=cv2.INTER_AREA).astype(np.float64)
 
 
 def expose(cov, *, dark: float = 25.0, bright: float = 215.0, vignetting: float = 0.0,
@@ -182,7 +243,7 @@ def iso_radius(z_mm, pitch_mm: float, major_d_mm: float, *, root: str = "flat") 
 
 
 def helical_outline(x_mm, pitch_mm: float, major_d_mm: float, *, lead_mm=None, root="flat",
-                    n_phi: int = 6001) -> np.ndarray:
+                    n_phi: int = 2001) -> np.ndarray:
     """Top outline radius of a helical thread seen square to its axis, by brute force.
 
     y_top(x) = max over phi of R(x - a phi) cos(phi), a = lead / (2 pi); phi sampled on
@@ -199,7 +260,7 @@ def helical_outline(x_mm, pitch_mm: float, major_d_mm: float, *, lead_mm=None, r
     phi = np.linspace(-phi_max, phi_max, n_phi)
     out = np.empty_like(x)
     step = phi[1] - phi[0]
-    fine = np.linspace(-step, step, 201)
+    fine = np.linspace(-step, step, 81)
     for i0 in range(0, len(x), 512):
         xs = x[i0:i0 + 512, None]
         y = iso_radius(xs - a * phi[None, :], P, major_d_mm, root=root) * np.cos(phi)[None, :]
@@ -241,22 +302,27 @@ def thread_polygons(pitch_mm: float, major_d_mm: float, *, x0_mm: float, x1_mm: 
 
 def tool_polygon(*, half_left_deg: float, half_right_deg: float, tip_flat_mm: float = 0.0,
                  nose_radius_mm: float = 0.0, shank_width_mm: float = 3.0,
-                 flank_length_mm: float = 3.0, shank_length_mm: float = 20.0,
+                 flank_length_mm: float | None = None, shank_length_mm: float = 20.0,
                  rotation_deg: float = 0.0, tip_mm=(0.0, 0.0), n_arc: int = 400) -> np.ndarray:
     """Top view of a threading tool, point up (+y), virtual sharp point at ``tip_mm``.
 
     Flanks at ``half_left_deg`` / ``half_right_deg`` from the shank axis (world y); tip cut
     by a flat of ``tip_flat_mm`` square to the axis, or rounded by an arc of
-    ``nose_radius_mm`` tangent to both flanks; the flanks run down ``flank_length_mm``, then
-    shoulders go out to the shank sides at +/- shank_width/2.  The whole tool is turned by
+    ``nose_radius_mm`` tangent to both flanks; with ``flank_length_mm=None`` each flank runs
+    down until it meets its shank side at +/- shank_width/2 (a point ground on the end of a
+    square blank); with a length, shoulders square to the axis go out to the shank sides.  The whole tool is turned by
     ``rotation_deg`` (counter-clockwise in the world) about the virtual point.
     """
     aL, aR = math.radians(half_left_deg), math.radians(half_right_deg)
     dl = np.array([-math.sin(aL), -math.cos(aL)])  # down the left flank from the point
     dr = np.array([math.sin(aR), -math.cos(aR)])
-    pl = flank_length_mm * dl
-    pr = flank_length_mm * dr
     W = shank_width_mm / 2
+    if flank_length_mm is None:
+        pl = (W / math.sin(aL)) * dl
+        pr = (W / math.sin(aR)) * dr
+    else:
+        pl = flank_length_mm * dl
+        pr = flank_length_mm * dr
     if tip_flat_mm > 0 and nose_radius_mm > 0:
         raise ValueError("tip flat or nose radius, not both")
     if tip_flat_mm > 0:

@@ -75,3 +75,10 @@ def test_work_diameter_needs_a_unit(files, capsys):
                "--work-diameter", "3"])
     assert rc == 2
     assert "--work-diameter" in capsys.readouterr().err
+
+
+def test_no_reference_exits_2_with_a_reason(files, capsys):
+    rc = main(["height", str(files / "low.png"), "--cal", str(files / "cam.json"),
+               "--reference", "point"])
+    assert rc == 2
+    assert "no lathe centre" in capsys.readouterr().err

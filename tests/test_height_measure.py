@@ -123,3 +123,14 @@ def test_bad_calls_name_the_parameter():
         measure_height(img, CAL, reference="line")
     with pytest.raises(ValueError, match="work_diameter_mm"):
         measure_height(img, CAL, work_diameter_mm=-3.0)
+
+
+def test_out_of_focus_view_is_refused():
+    from profilecheck.errors import QualityError
+
+    shapes = [centre_side_view(apex_mm=(-0.4, 0.0), diameter_mm=3.0)[0],
+              tool_side_view(tip_mm=(0.25, 0.05), thickness_mm=1.5)[0]]
+    img, _ = render(shapes, Camera(S, SIZE, centre_mm=(0.0, 0.2)), blur_px=6.0, noise=2.5,
+                    dark=30, bright=215, seed=7, supersample=2)
+    with pytest.raises(QualityError, match="out of focus"):
+        measure_height(img, CAL, reference="point")

@@ -149,3 +149,16 @@ def test_tool_height_offset_recovered_from_image():
         y_edge = cam.px_to_world(np.array([[198.0, v_edge]]))[0, 1]
         assert y_edge - t["scene"]["axis_y_mm"] == pytest.approx(off, abs=1e-5)
         assert t["scene"]["height_offset_mm"] == off
+
+
+def test_truth_is_json():
+    # The demo writes every truth dict as JSON beside its image (profilecheck.scenario).
+    import json
+
+    from profilecheck.synth import render_checkerboard as board
+
+    cam = Camera(0.01, (80, 60), working_distance_mm=40.0, k1=-0.1)
+    for img, t in (render_pin(cam, 0.3), board(cam, squares=(4, 3), square_mm=0.1),
+                   render_tool(cam, nose_radius_mm=0.02, shank_width_mm=0.3)):
+        back = json.loads(json.dumps(t))
+        assert back["camera"]["mode"] == "pinhole" and back["scene"]["kind"]

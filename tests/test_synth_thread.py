@@ -6,10 +6,10 @@ import math
 import numpy as np
 import pytest
 
-from profilecheck.synth import (Camera, axial_profile_acme, axial_profile_ba, axial_profile_iso,
+from profilecheck.synth import (axial_profile_acme, axial_profile_ba, axial_profile_iso,
                                 axial_profile_trapezoidal, axial_profile_un,
                                 axial_profile_whitworth, outline_values, profile_from_polyline,
-                                render_thread, thread_silhouette)
+                                thread_silhouette)
 from profilecheck.synth._helix import envelope
 
 
@@ -137,7 +137,7 @@ def test_tilt_by_lead_angle_corrects_one_limb():
     v = _values(p, 1.5, tilt=-psi)
     assert abs(2 * v["upper"]["pitch_radius_mm"] - d2) * 1000 < 0.5
     for g, ref in ((2.0, 30.044), (-6.0, 29.555)):
-        v = _values(p, 1.5, tilt=g, divide=False)
+        v = _values(p, 1.5, tilt=g, divide=False, limbs=("upper",))
         assert v["upper"]["flank_left_deg"] == pytest.approx(ref, abs=0.012)
 
 
@@ -193,11 +193,11 @@ def test_tilted_outline_matches_ray_march():
     a = 1.5 / (2 * math.pi)
     g = math.radians(4.0)
     c, s = math.cos(g), math.sin(g)
-    xis = np.linspace(-0.7, 0.8, 7)
+    xis = np.linspace(-0.7, 0.8, 5)
     z = np.arange(-1.5, 1.5, 5e-5)  # contour points lie up to ~1 mm off the axial plane
     exact = envelope(prof, a, g, xis)
     lo, hi = np.full(len(xis), 4.0), np.full(len(xis), 5.01)
-    for _ in range(24):
+    for _ in range(22):  # bracket 1.01 mm / 2^22 = 2.4e-7 mm
         eta = 0.5 * (lo + hi)[:, None]
         x = (xis[:, None] - z[None, :] * s) / c
         r = np.hypot(eta, z[None, :])
@@ -223,23 +223,17 @@ def test_polyline_profile_and_bad_calls():
         thread_silhouette(p, 12.0, 1.5, 1, 3.0)
 
 
-def test_render_thread_truth():
-    # Truth dict carries the axial-section values (ISO 68-1) and the apparent outline
-    # values, and the image shows the crest at the major diameter (helix leaves the crest
-    # diameter unchanged, standards-notes s9).
-    cam = Camera(0.01, (1000, 1200))
-    img, truth = render_thread(cam, pitch_mm=1.5, major_d_mm=10.0, thread_length_mm=7.0,
-                               noise=0.0, blur_px=1.0, bit_depth=16, chamfer_mm=0.4)
-    t = truth["thread"]
-    assert t["pitch_d_mm"] == pytest.approx(10 - 0.649519 * 1.5, abs=1e-6)
-    assert t["apparent_pitch_d_mm"] - t["pitch_d_mm"] == pytest.approx(0.038, abs=0.002)
-    assert t["lead_angle_deg"] == pytest.approx(3.03, abs=0.01)   # vision-notes s5 table
-    up = np.array(t["outline_mm"]["upper"])
-    assert up[:, 1].max() == pytest.approx(5.0, abs=1e-12)
-    # image: column through a crest centre is dark from y = -5 to +... at 0.01 mm/px
-    lv = truth["levels"]
-    frac = (lv["bright"] - img.astype(float)) / (lv["bright"] - lv["dark"])
-    assert frac.shape == (1200, 1000)
-    dark_rows = frac[:, 500].sum()  # the column crosses both limbs
-    assert 836 < dark_rows < 1001   # between the minor and major diameters in px
 
+def test_standards_polyline_profile():
+    # profilecheck.standards gives the basic profile as a polyline over whole pitches
+    # (docs/contracts.md); used as the axial section it reproduces the M10x1.5 helix
+    # error of vision-notes s5 (+38 um +- 2).
+    standards = pytest.importorskip("profilecheck.standards")
+    try:
+        spec = standards.thread_spec("M10x1.5-6g")
+        poly = spec.axial_profile("basic", 3)
+    except Exception as exc:  # another module's gap must not hide ours
+        pytest.skip(f"standards axial_profile unavailable: {exc}")
+    sil = thread_silhouette(poly, None, 1.5, 1, 4.5, pitch_mm=1.5, limbs=("upper",))
+    v = outline_values(sil["upper"], 1.5, spec.minor_diameter_mm / 2, spec.major_diameter_mm / 2)
+    assert (2 * v["pitch_radius_mm"] - spec.pitch_diameter_mm) * 1000 == pytest.approx(38.0, abs=2.0)

@@ -82,6 +82,13 @@ def test_m6_both_edges_against_basic_geometry(m6_image):
     assert_allclose(m["crest_flat"].value, P / 8, atol=0.004)
     assert_allclose(m["root_flat"].value, P / 4, atol=0.004)
     assert_allclose(m["depth"].value, 5 * H / 8, atol=0.004)
+    # virtual wires vs the ASME B1.2 / H28 formula (standards-notes section 4):
+    # M = E - (P/2) cot 30 + w (1 + csc 30) + w [sqrt(csc^2 + tan^2 B cot^2) - csc], w = P/(2 cos 30)
+    w = P / (2 * math.cos(math.radians(30)))
+    E = 6.0 - 0.649519 * P
+    tb = P / (math.pi * E)
+    m_formula = E - 0.5 * P * math.sqrt(3) + 3 * w + w * (math.sqrt(4 + 3 * tb ** 2) - 2)
+    assert_allclose(m["over_wire"].value, m_formula, atol=0.004)
     # the raw outline read the pitch diameter about 28 um large (standards-notes 9)
     assert_allclose(r.helix["pitch_diameter_correction_mm"], -0.028, atol=0.003)
     # axis turned 2 deg counter-clockwise on the screen -> image angle -2 deg
@@ -122,6 +129,29 @@ def test_unequal_flanks_single_edge_and_mirror(unequal_image):
     assert_allclose(m.measurements["flank_right"].value, 27.0, atol=0.3)
 
 
+def test_unequal_flanks_both_edges_mirrored_and_flipped():
+    # Flanks 27 / 33 deg drawn on the axial section; both edges must read them on the same
+    # sides; a left-right mirror swaps them, an up-down flip does not (the flank facing
+    # image left still faces left). Pitch diameter: ISO 68-1 basic 5.350481.
+    from profilecheck import synth
+    cam = synth.Camera(0.0125, (640, 560), rotation_deg=-1.5)
+    img, _ = synth.render_thread(
+        cam, profile=synth.axial_profile_iso(1.0, 6.0, flank_left_deg=27.0, flank_right_deg=33.0),
+        thread_length_mm=12.0, blur_px=1.2, noise=2.0, dark=28, bright=225, supersample=4)
+    img = img.astype(float) / 255.0
+    cal = cal_for(img, 0.0125)
+    for view, left, right in ((img, 27.0, 33.0), (img[:, ::-1], 33.0, 27.0),
+                              (img[::-1, :], 27.0, 33.0)):
+        r = measure_thread(np.ascontiguousarray(view), cal, spec="M6x1-6g")
+        for edge in ("top", "bottom"):
+            pt = r.per_tooth[edge]
+            assert_allclose(np.mean([v for v in pt["flank_left_deg"] if v is not None]), left,
+                            atol=0.1)
+            assert_allclose(np.mean([v for v in pt["flank_right_deg"] if v is not None]), right,
+                            atol=0.1)
+        assert_allclose(r.measurements["pitch_diameter"].value, 5.350481, atol=0.004)
+
+
 def test_single_edge_with_spec_corrects_helix(unequal_image):
     # With the lead and basic d2 of a spec the correction is applied; the flank sum comes
     # back to 60 deg (ISO 68-1) within 0.1 deg.
@@ -146,6 +176,28 @@ def test_lens_calibration_path(m6_image):
                     tele.measurements["pitch_diameter"].value, atol=2e-4)
 
 
+def test_whole_stay_with_shoulder_chamfer_and_chip():
+    # A real part: shank, relief groove, 9 mm of M6x1 thread (d2 80 um under basic, so
+    # 5.270481), crest turned to 5.90 (6g: 5.794..5.974), 0.6 mm chamfer, one crest chipped
+    # on the top edge. The chipped tooth and
+    # the end teeth are left out with warnings; the rest still measures the thread.
+    from profilecheck import synth
+    cam = synth.Camera(0.015, (800, 600), rotation_deg=1.0)
+    img, truth = synth.render_thread(
+        cam, profile=synth.axial_profile_iso(1.0, 6.0, pd_offset_mm=-0.08, major_offset_mm=-0.1),
+        thread_length_mm=9.0,
+        x_start_mm=-4.0, shank_length_mm=5.0, groove_length_mm=1.5, chamfer_mm=0.6,
+        chip={"x_mm": 4.0, "width_mm": 0.5, "depth_mm": 0.15}, blur_px=1.2, noise=2.0,
+        dark=28, bright=225, vignetting=0.15, seed=11, supersample=4)
+    img = img.astype(float) / 255.0
+    r = measure_thread(img, cal_for(img, 0.015), spec="M6x1-6g")
+    assert any("damaged" in w for w in r.warnings)
+    assert_allclose(r.measurements["pitch_diameter"].value, 6.0 - 0.649519 - 0.08, atol=0.004)
+    assert_allclose(r.measurements["flank_left"].value, 30.0, atol=0.1)
+    assert_allclose(r.measurements["major_diameter"].value, 5.90, atol=0.004)
+    assert r.verdict == "pass"
+
+
 def test_blank_image_refused():
     img = np.full((200, 300), 0.85)
     with pytest.raises(MeasurementError):
@@ -159,9 +211,9 @@ def test_low_contrast_refused(m6_image):
 
 
 def test_out_of_focus_refused(m6_image):
-    blurred = ndimage.gaussian_filter(m6_image, 7.0)
-    with pytest.raises(QualityError):
-        measure_thread(blurred, cal_for(m6_image, 0.0125))
+    blurred = ndimage.gaussian_filter(m6_image[:, :320], 7.0)
+    with pytest.raises(QualityError, match="blurred|focus"):
+        measure_thread(blurred, cal_for(blurred, 0.0125))
 
 
 def test_too_few_teeth_refused(unequal_image):

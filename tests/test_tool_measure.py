@@ -145,3 +145,52 @@ def test_bad_calls_name_the_parameter():
         measure_tool(img, CAL, internal="yes")
     with pytest.raises(ValueError, match="roi"):
         measure_tool(img, CAL, roi=(10, 10, 5, 5))
+
+
+def test_boring_bar_point_is_measured_from_the_normal_to_the_bar():
+    # a point ground on the side of a bar (internal tool), turned 1 deg anticlockwise from
+    # square: from the bar's normal the flanks make 29 and 31 deg (plane geometry)
+    bar, _ = bar_side_view(diameter_mm=1.2, x0_mm=-5.0, x1_mm=5.0)  # y from -0.6 to 0.6
+    point, _ = tool_top_view(shank_width_mm=1.0, shank_length_mm=1.0, tip_flat_mm=0.08,
+                             direction_deg=91.0, apex_mm=(0.2, 1.3))
+    cam = Camera(S, SIZE, rotation_deg=2.0, centre_mm=(0.0, 0.3))
+    img, _ = render([bar, point], cam, blur_px=1.3, noise=2.0, dark=28, bright=225, seed=12,
+                    supersample=4)
+    r = measure_tool(img, CAL, internal=True)
+    assert r.reference == "shank normal"
+    m = r.measurements
+    assert m["included_angle"].value == pytest.approx(60.0, abs=0.1)
+    assert m["half_left"].value == pytest.approx(29.0, abs=0.15)
+    assert m["half_right"].value == pytest.approx(31.0, abs=0.15)
+    assert m["bisector_tilt"].value == pytest.approx(-1.0, abs=0.15)
+    assert m["tip_flat"].value == pytest.approx(0.08, abs=0.003)
+
+
+def test_squareness_to_a_centre_in_the_same_top_view():
+    from profilecheck.measure.tool import measure_squareness
+    from profilecheck.scenario._shapes import centre_side_view
+
+    # centre along world x (its bisector is the axis); tool turned 0.5 deg anticlockwise:
+    # the bisector is 0.5 deg off the axis normal, -0.5 in the image convention (clockwise +)
+    centre, _ = centre_side_view(apex_mm=(-0.3, 0.9), diameter_mm=0.8, pointing_deg=0.0)
+    tool, _ = tool_top_view(shank_width_mm=1.2, tip_flat_mm=0.08, direction_deg=90.5,
+                            apex_mm=(0.4, 0.35))
+    img, _ = render([centre, tool], Camera(S, SIZE, rotation_deg=-2.0, centre_mm=(0.0, 0.0)),
+                    blur_px=1.3, noise=2.0, dark=28, bright=225, seed=13, supersample=4)
+    r = measure_squareness(img, CAL)
+    assert r.details["reference"] == "centre"
+    assert r.measurements["squareness"].value == pytest.approx(-0.5, abs=0.05)
+
+
+def test_roi_picks_one_of_two_tools():
+    # two tools side by side: 60 deg on the left, 55 deg (Whitworth form) on the right;
+    # the region of interest (x0, y0, x1, y1 px) holds only the right-hand one
+    left, _ = tool_top_view(shank_width_mm=1.0, tip_flat_mm=0.06, apex_mm=(-0.9, 0.6))
+    right, truth = tool_top_view(shank_width_mm=1.0, tip_flat_mm=0.06, apex_mm=(0.9, 0.6),
+                                 half_left_deg=27.5, half_right_deg=27.5)
+    img, _ = render([left, right], Camera(S, SIZE), blur_px=1.3, noise=2.0, dark=28,
+                    bright=225, seed=14, supersample=4)
+    r = measure_tool(img, CAL, roi=(330, 0, 639, 479))
+    assert r.measurements["included_angle"].value == pytest.approx(55.0, abs=0.1)
+    r = measure_tool(img, CAL, roi=(0, 0, 310, 479))
+    assert r.measurements["included_angle"].value == pytest.approx(60.0, abs=0.1)

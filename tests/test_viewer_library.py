@@ -108,32 +108,28 @@ def test_library_error_reaches_the_status_line(qtbot, win):
     assert win.readings_panel.table.rowCount() == 0
 
 
-def test_saved_json_is_the_library_report_for_the_same_file(qtbot, win, height_frame, tmp_path):
-    import json
-
+def test_saved_files_are_what_the_command_line_writes(qtbot, win, height_frame, tmp_path):
     import cv2
 
     from profilecheck.calibration import save_calibration
-    from profilecheck.commands._common import dumps_json
-    from profilecheck.measure import measure_height
+    from profilecheck.cli import main
     pic, calf = tmp_path / "height.png", tmp_path / "cal.json"
     cv2.imwrite(str(pic), height_frame)
-    cal = Calibration(mm_per_px=MM_PER_PX, u_mm_per_px=2e-6, image_size=SIZE)
-    save_calibration(cal, calf)
-    assert win.open_image(pic) and win.open_calibration(calf)
+    save_calibration(Calibration(mm_per_px=MM_PER_PX, u_mm_per_px=2e-6, image_size=SIZE), calf)
+    assert win.open_image(str(pic)) and win.open_calibration(str(calf))
     win.model.set_mode("height")
     _run(qtbot, win)
     saved = win.save_results(tmp_path / "out")
     assert saved is not None and saved.sheet is not None
-    # what the command line writes: the library's report of the same file, same JSON writer
-    direct = json.loads(dumps_json(measure_height(str(pic), cal).to_dict()))
-    mine = json.loads(saved.json.read_text())
-    assert mine["measurements"] == direct["measurements"]
-    assert mine["verdict"] == direct["verdict"]
-    assert mine["kind"] == "height" and mine["image"] == str(pic)
+    # the same picture and calibration through the command line's height command
+    cli_json = tmp_path / "cli.json"
+    assert main(["height", str(pic), "--cal", str(calf), "--json", str(cli_json)]) == 0
+    assert saved.json.read_text() == cli_json.read_text()
     back = cv2.imread(str(saved.raw), cv2.IMREAD_UNCHANGED)
     assert np.array_equal(back, height_frame)          # the raw frame, untouched
     assert "<html" in saved.sheet.read_text().lower()
+    ann = cv2.imread(str(saved.annotated))
+    assert ann.shape[:2] == (SIZE[1], SIZE[0])
 
 
 def test_axis_saved_from_a_point_serves_a_line_job(qtbot, win, height_frame, tmp_path):

@@ -3,7 +3,6 @@ abrupt end) reach the screen, the height job measures them continuously off the 
 the frame rate shows, and a lost camera gives a message and a Reconnect button, not a freeze.
 The library is ScriptedBackend here (wiring only); test_viewer_library.py uses the real one."""
 
-import threading
 
 import numpy as np
 import pytest

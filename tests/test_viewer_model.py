@@ -4,7 +4,6 @@ saving. No Qt is imported here."""
 import json
 import sys
 import threading
-import time
 
 import numpy as np
 import pytest
@@ -234,3 +233,9 @@ def test_view_command_reads_gauge_sizes_with_units():
     assert args.image == "pin.png" and args.pin == "0.25in" and args.run_mode == "calibrate"
     from profilecheck.units import parse_length
     assert parse_length(args.pin) == pytest.approx(6.35, abs=1e-12)  # 1 in = 25.4 mm exactly
+
+
+def test_scale_reads_in_ppm():
+    # 0.01 mm/px with U = 5.5e-7 mm/px is 55 ppm; 0.01 mm = 0.000393701 in (/ 25.4).
+    assert mm_text(0.01, 5.5e-7, "mm/px") == "0.0100000 mm/px \u00b1 55 ppm"
+    assert inch_text(0.01, 5.5e-7, "mm/px") == "0.00039370 in/px"

@@ -2,8 +2,8 @@
 FILE`` runs the height job on a synthetic render, saves a screenshot of its window and quits.
 The screenshot must show the picture and the verdict banner, not a blank window."""
 
-import json
 import os
+import select
 import shutil
 import subprocess
 import sys
@@ -20,27 +20,34 @@ XVFB = shutil.which("Xvfb") or ("/usr/bin/Xvfb" if os.path.exists("/usr/bin/Xvfb
 ROOT = Path(__file__).resolve().parents[1]
 
 
-def _free_display() -> int:
-    for n in range(99, 160):
-        if not os.path.exists(f"/tmp/.X11-unix/X{n}") and not os.path.exists(f"/tmp/.X{n}-lock"):
-            return n
-    pytest.skip("no free X display number")
-
-
 @pytest.fixture
 def xserver():
+    """Start Xvfb on a display number it picks itself (-displayfd), so parallel runs never
+    collide; yield ':N'."""
     if XVFB is None:
         pytest.skip("Xvfb is not installed")
-    n = _free_display()
-    proc = subprocess.Popen([XVFB, f":{n}", "-screen", "0", "1600x1000x24", "-nolisten", "tcp"],
+    rfd, wfd = os.pipe()
+    proc = subprocess.Popen([XVFB, "-displayfd", str(wfd), "-screen", "0", "1600x1000x24",
+                             "-nolisten", "tcp"], pass_fds=(wfd,),
                             stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
-    deadline = time.monotonic() + 10
-    while not os.path.exists(f"/tmp/.X11-unix/X{n}"):
-        if proc.poll() is not None or time.monotonic() > deadline:
-            proc.kill()
-            pytest.skip("Xvfb did not start")
-        time.sleep(0.05)
-    yield f":{n}"
+    os.close(wfd)
+    got = b""
+    deadline = time.monotonic() + 15
+    while not got.endswith(b"\n") and time.monotonic() < deadline:
+        ready, _, _ = select.select([rfd], [], [], 0.2)
+        if ready:
+            chunk = os.read(rfd, 64)
+            if not chunk:
+                break
+            got += chunk
+        elif proc.poll() is not None:
+            break
+    os.close(rfd)
+    if not got.strip().isdigit():
+        proc.kill()
+        proc.wait(5)
+        pytest.skip("Xvfb did not start")
+    yield f":{int(got.strip())}"
     proc.terminate()
     try:
         proc.wait(5)

@@ -75,6 +75,12 @@ class OutputSet:
 
         self._pending.append((path, _write))
 
+    def add_action(self, path: Path | None, action: Callable[[Path], None]) -> None:
+        """Queue ``action(path)`` (e.g. a log record) to run at :meth:`commit`, after the
+        files before it; the action is responsible for its own atomicity."""
+        if path is not None:
+            self._pending.append((path, action))
+
     def commit(self) -> None:
         for path, write in self._pending:
             write(path)

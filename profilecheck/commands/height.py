@@ -99,8 +99,6 @@ def run(args) -> int:
     text = _table(d, args.units)
     outputs.commit()
     print(text, end="")
-    for a in result.advice:
-        print(f"to do: {a}")
     for w in result.warnings:
         info(f"warning: {w}")
     return exit_code_for(result.verdict)

@@ -38,7 +38,9 @@ class EdgeSet:
         ``closed[k]`` is True when contour k is a closed loop inside the search area.
     n_dropped : int
         Seed points rejected because the 1-D edge model did not fit (corners, junctions,
-        narrow gaps, dust, low contrast).
+        narrow gaps, dust, low contrast, residual far above the image's noise), or because
+        their fit landed on an edge point another seed of the same pixel row (column)
+        already gave.
     noise_std : float
         Pooled RMS residual of the profile fits (grey levels, [0, 1] scale).
     warnings : tuple of str

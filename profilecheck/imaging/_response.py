@@ -75,7 +75,7 @@ def estimate_gamma(img, *, roi=None, max_profiles: int = 400) -> GammaEstimate:
     from ..errors import MeasurementError
     from ._seeds import seeds_from_contours
     from ._stepfit import fit_steps
-    from .edges import _check_roi, _fit_group, _gather, _window_mask
+    from .edges import _SEED_LEVEL, _check_roi, _fit_group, _gather, _window_mask
     from .silhouette import flatten_backlight
 
     a = np.asarray(img)
@@ -90,7 +90,7 @@ def estimate_gamma(img, *, roi=None, max_profiles: int = 400) -> GammaEstimate:
     if sil.contrast < 0.05:
         raise MeasurementError("no silhouette to estimate the camera response from")
     fs = cv2.GaussianBlur(sil.flat, (0, 0), 1.0, borderType=cv2.BORDER_REPLICATE)
-    seeds = seeds_from_contours(find_contours(fs, 0.5))
+    seeds = seeds_from_contours(find_contours(fs, _SEED_LEVEL))
     usable = np.flatnonzero(~seeds.corner)
     if len(usable) < 20:
         raise MeasurementError("too few edge points to estimate the camera response")

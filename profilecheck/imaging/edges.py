@@ -6,7 +6,8 @@ Pipeline (vision-notes section 6):
 2. flatten the backlight and seed from the 50 % contour of the flattened image
    (:mod:`.silhouette`, :mod:`._seeds`);
 3. at every row (column) crossing of the contour, fit the pixel-exact blurred-step model
-   (:mod:`._stepfit`) to the pixels of that row (column), with free dark level, contrast and
+   (:mod:`._stepfit`) to the pixels of that row (column) of the flattened image (backlight
+   divided out, so vignetting does not tilt the plateaus), with free dark level, contrast and
    blur; window 2 x 5 sigma_e along the normal, at least 16 samples, cut short before a
    neighbouring edge; clipped samples left out;
 4. reject profiles where the 1-D model does not hold (corners, junctions, narrow gaps):
@@ -34,13 +35,16 @@ from scipy.stats import chi2
 from ._edgeset import EdgeSet, empty_edgeset
 from ._seeds import Seeds, seeds_from_contours
 from ._stepfit import fit_steps
-from .silhouette import flatten_backlight, linearise
+from .silhouette import _EDGE_CLEAR_PX, flatten_backlight, linearise
 
 __all__ = ["find_edges", "EdgeSet"]
 
 _SEED_SMOOTH_PX = 1.0      # Gaussian smoothing of the flattened image before contouring
+# seed contour level: just below 50 % so that pixels sitting exactly at 50 % (an edge through
+# a row of pixel centres in a clean render) count as bright instead of hiding the contour
+_SEED_LEVEL = 0.5 - 1e-9
 _MIN_HALF_WINDOW = 7       # 2 * 7 + 2 = 16 samples >= 15 (vision-notes section 6, rule 1)
-_MAX_HALF_WINDOW = 30
+_MAX_HALF_WINDOW = 40
 _PILOT_HALF_WINDOW = 12
 _PILOT_N = 300
 _NU_POOL = 10.0            # prior degrees of freedom of the pooled noise in each point's std
@@ -82,7 +86,7 @@ def _window_mask(fvals, inb, hw, margin, HW):
     """Samples inside each profile's own window, stopping short of a neighbouring edge."""
     N, W = fvals.shape
     j = np.arange(W)[None, :]
-    cls = fvals < 0.5
+    cls = fvals < _SEED_LEVEL
     left_ref = cls[:, HW:HW + 1]
     right_ref = cls[:, HW + 1:HW + 2]
     eq_l = (cls[:, HW::-1] == left_ref) | ~inb[:, HW::-1]
@@ -127,6 +131,23 @@ def _fit_group(img, flat, censored, seeds, idx, sigma_b, *, hw=None, t=None, x0=
     return res, start, direction, enough, hw, thin
 
 
+def _duplicates(along_x, line, pos, ok):
+    """Profiles on the same pixel row (column) whose fits landed on the same edge.
+
+    A noisy or very blurred seed contour can cross one row several times at one edge; every
+    such seed then fits the same pixels. Keep the first, flag the rest.
+    """
+    dup = np.zeros(len(pos), dtype=bool)
+    ii = np.flatnonzero(ok)
+    if len(ii) < 2:
+        return dup
+    order = ii[np.lexsort((pos[ii], line[ii], along_x[ii]))]
+    same = (along_x[order[1:]] == along_x[order[:-1]]) & (line[order[1:]] == line[order[:-1]])
+    close = np.abs(pos[order[1:]] - pos[order[:-1]]) < 1.0
+    dup[order[1:][same & close]] = True
+    return dup
+
+
 def _neighbour_normals(xy, contour, closed_of, k: int = 3):
     n = len(xy)
     tan = np.zeros_like(xy)
@@ -165,7 +186,9 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     min_contrast : float
         Minimum bright-minus-dark level ([0, 1] scale) for the image and for each profile.
     min_contour_px : int
-        Contours with fewer vertices than this (dust, specks) are ignored.
+        Contours with fewer vertices than this are ignored (a marching-squares contour has
+        about 1.3 vertices per px of length, so the default 12 skips specks under ~3 px
+        across; larger dust specks on the backlight still show up as small closed contours).
 
     Returns
     -------
@@ -202,7 +225,9 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         raise TypeError(f"img must be a float image in [0, 1] (see load_image), got {a.dtype}")
     if not np.all(np.isfinite(a)):
         raise ValueError("img contains non-finite values")
-    if isinstance(min_contrast, bool) or not (0 < float(min_contrast) < 1):
+    if isinstance(min_contrast, bool) or not isinstance(min_contrast, (int, float, np.number)):
+        raise TypeError(f"min_contrast must be a number, got {type(min_contrast).__name__}")
+    if not (0 < float(min_contrast) < 1):
         raise ValueError(f"min_contrast must be in (0, 1), got {min_contrast!r}")
     if not isinstance(min_contour_px, (int, np.integer)) or min_contour_px < 3:
         raise ValueError(f"min_contour_px must be an int >= 3, got {min_contour_px!r}")
@@ -233,7 +258,7 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     # profile window would otherwise tilt the bright plateau and pull the edge
     work = sil.flat
     scale_img = np.maximum(sil.background - sil.dark_level, 1e-9)
-    seeds = seeds_from_contours(find_contours(fs, 0.5), min_vertices=min_contour_px)
+    seeds = seeds_from_contours(find_contours(fs, _SEED_LEVEL), min_vertices=min_contour_px)
     n_seed = len(seeds.pos)
     if n_seed == 0:
         warnings.append("no edge found: the image shows no dark silhouette on a bright field")
@@ -250,38 +275,86 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     good_p = pr.converged & p_enough & np.isfinite(sb_p) & (pr.C > 0.3)
     sigma_b = float(np.median(sb_p[good_p])) if good_p.sum() >= 3 else 1.0
     sigma_b = min(max(sigma_b, 0.2), 8.0)
+    if 4.0 * sigma_b + 2.0 > _EDGE_CLEAR_PX:
+        # blurry: fit the backlight farther from the edges, beyond their tails
+        sil = flatten_backlight(lin, clear_px=4.0 * sigma_b + 2.0)
+        work = sil.flat
+        scale_img = np.maximum(sil.background - sil.dark_level, 1e-9)
 
     idx = np.arange(n_seed)
     res, start, direction, enough, hw, thin = _fit_group(work, fs, censored, seeds, idx, sigma_b)
+    fit = {"x0": res.x0.copy(), "B": res.B.copy(), "C": res.C.copy(), "s": res.s.copy(),
+           "var": res.var_x0_unit.copy(), "rss": res.rss.copy(), "dof": np.maximum(res.dof, 1.0)}
+    ax_all = seeds.along_x
+    line_all = seeds.line.astype(np.float64)
 
+    def positions(ii):
+        pos = start[ii] + fit["x0"][ii]
+        return np.where(ax_all[ii, None], np.c_[pos, line_all[ii]], np.c_[line_all[ii], pos])
+
+    # 1. the fit converged on a step near the seed, away from sharp contour turns
+    pre = res.converged & enough & np.isfinite(res.x0) & np.isfinite(res.var_x0_unit)
+    pre &= (np.abs(res.x0 - (seeds.pos - start)) <= 2.0) & ~seeds.corner
+    pi = np.flatnonzero(pre)
+    if len(pi) == 0:
+        warnings.append("no edge point passed the edge-model checks (blur, contrast or noise too "
+                        "poor): refocus and check the lighting")
+        return empty_edgeset(shape, warnings, n_seed)
+
+    # 2. normals from the neighbouring points of the same contour, oriented dark -> bright
+    normal_all = np.zeros((n_seed, 2))
+    nrm, n_ok = _neighbour_normals(positions(pi), seeds.contour[pi], seeds.closed)
+    dirk = direction[pi]
+    axk = ax_all[pi]
+    comp = np.where(axk, nrm[:, 0], nrm[:, 1])
+    nrm[np.sign(comp) != np.sign(dirk)] *= -1
+    bad_n = ~n_ok | (np.abs(comp) < 0.5)
+    fallback = np.where(axk[:, None], np.c_[dirk, np.zeros_like(dirk)],
+                        np.c_[np.zeros_like(dirk), dirk])
+    nrm[bad_n] = fallback[bad_n]
+    normal_all[pi] = nrm
+
+    # 3. refit where the refined normal changes the pixel-box shape noticeably (sharp edges
+    #    are sensitive to it); keep the refit only where it stays put
+    t_new = np.abs(np.where(axk, nrm[:, 1], nrm[:, 0])) / np.maximum(
+        np.abs(np.where(axk, nrm[:, 0], nrm[:, 1])), 1e-9)
+    t_old = seeds.n_other[pi] / seeds.n_axis[pi]
+    sel = np.abs(t_new - t_old) > 0.02
+    redo = pi[sel]
+    if len(redo):
+        r2, _, _, en2, _, _ = _fit_group(work, fs, censored, seeds, redo, sigma_b, hw=hw[redo],
+                                         t=t_new[sel], x0=fit["x0"][redo], s0=fit["s"][redo])
+        good2 = r2.converged & en2 & (np.abs(r2.x0 - fit["x0"][redo]) < 0.5)
+        gi = redo[good2]
+        fit["x0"][gi], fit["B"][gi], fit["C"][gi] = r2.x0[good2], r2.B[good2], r2.C[good2]
+        fit["s"][gi], fit["var"][gi] = r2.s[good2], r2.var_x0_unit[good2]
+        fit["rss"][gi], fit["dof"][gi] = r2.rss[good2], np.maximum(r2.dof[good2], 1.0)
+
+    # 4. quality: contrast, blur like its neighbours', residual like the image's noise
     n_a = seeds.n_axis
-    sb = res.s * n_a
-    ok = res.converged & enough & np.isfinite(res.x0) & np.isfinite(res.var_x0_unit)
-    seed_x0 = seeds.pos - start
-    ok &= np.abs(res.x0 - seed_x0) <= 2.0
-    seed_rc = np.where(seeds.along_x[:, None], np.c_[seeds.line, np.round(seeds.pos)],
+    sb = fit["s"] * n_a
+    seed_rc = np.where(ax_all[:, None], np.c_[seeds.line, np.round(seeds.pos)],
                        np.c_[np.round(seeds.pos), seeds.line]).astype(int)
     seed_rc = np.clip(seed_rc, 0, np.array(work.shape) - 1)
     scale_seed = scale_img[seed_rc[:, 0], seed_rc[:, 1]]
-    ok &= (res.C >= 0.3) & (res.C * scale_seed >= min_contrast)
-    ok &= ~seeds.corner
-    if ok.sum() >= 3:
-        med_sb = float(np.median(sb[ok]))
-    else:
-        med_sb = sigma_b
-    ok &= (sb <= 2.0 * med_sb + 0.5) & (sb >= 0.4 * med_sb - 0.2) & (res.s > 0.051)
-    dof = np.maximum(res.dof, 1.0)
-    s2 = res.rss / dof
+    ok = pre & (fit["C"] >= 0.3) & (fit["C"] * scale_seed >= min_contrast)
+    med_sb = float(np.median(sb[ok])) if ok.sum() >= 3 else sigma_b
+    ok &= (sb <= 2.0 * med_sb + 0.5) & (sb >= 0.4 * med_sb - 0.2)
+    dof = fit["dof"]
+    s2 = fit["rss"] / dof
     if ok.sum() >= 3:
         d_med = float(np.median(dof[ok]))
+        # median of chi^2/dof -> mean (Wilson-Hilferty)
         pooled = float(np.median(s2[ok])) / (1.0 - 2.0 / (9.0 * d_med)) ** 3
     else:
-        pooled = float(np.median(s2))
+        pooled = float(np.median(s2[pi]))
     pooled = max(pooled, 1e-14)
     # residual test, with a floor so that residuals far below any camera's noise (0.3 % of
     # the contrast, about half an 8-bit code) never reject a point (rendered, noise-free images)
     s2_test = max(pooled, _NOISE_FLOOR_REL ** 2)
     ok &= s2 <= s2_test * chi2.ppf(_RESID_P, dof) / dof
+
+    ok &= ~_duplicates(ax_all, seeds.line, start + fit["x0"], ok)
 
     keep = np.flatnonzero(ok)
     n_dropped = n_seed - len(keep)
@@ -290,48 +363,11 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
                         "poor): refocus and check the lighting")
         return empty_edgeset(shape, warnings, n_dropped)
 
-    ax = seeds.along_x[keep]
-    pos = start[keep] + res.x0[keep]
-    line = seeds.line[keep].astype(np.float64)
-    xy = np.where(ax[:, None], np.c_[pos, line], np.c_[line, pos])
-
+    xy = positions(keep)
+    normal = normal_all[keep]
     # renumber contours 0..K-1 in order of appearance
-    src = seeds.contour[keep]
-    uniq, contour = np.unique(src, return_inverse=True)
+    uniq, contour = np.unique(seeds.contour[keep], return_inverse=True)
     closed = tuple(bool(seeds.closed[u]) for u in uniq)
-    normal, n_ok = _neighbour_normals(xy, contour, closed)
-    # orient dark -> bright: the profile's rising direction along its axis
-    dirk = direction[keep]
-    comp = np.where(ax, normal[:, 0], normal[:, 1])
-    flip = np.sign(comp) != np.sign(dirk)
-    normal[flip] *= -1
-    bad_n = ~n_ok | (np.abs(comp) < 0.5)
-    fallback = np.where(ax[:, None], np.c_[dirk, np.zeros_like(dirk)],
-                        np.c_[np.zeros_like(dirk), dirk])
-    normal[bad_n] = fallback[bad_n]
-
-    # refit where the neighbour normal changes the pixel-box shape noticeably
-    na_new = np.abs(np.where(ax, normal[:, 0], normal[:, 1]))
-    no_new = np.abs(np.where(ax, normal[:, 1], normal[:, 0]))
-    t_new = no_new / np.maximum(na_new, 1e-9)
-    t_old = seeds.n_other[keep] / seeds.n_axis[keep]
-    redo = np.flatnonzero(np.abs(t_new - t_old) > 0.02)
-    x0_k = res.x0[keep].copy()
-    s_k = res.s[keep].copy()
-    B_k, C_k = res.B[keep].copy(), res.C[keep].copy()
-    var_k = res.var_x0_unit[keep].copy()
-    rss_k, dof_k = res.rss[keep].copy(), dof[keep].copy()
-    if len(redo):
-        gi = keep[redo]
-        r2, st2, _, en2, _, _ = _fit_group(work, fs, censored, seeds, gi, sigma_b, hw=hw[gi],
-                                        t=t_new[redo], x0=x0_k[redo], s0=s_k[redo])
-        good2 = r2.converged & en2 & (np.abs(r2.x0 - x0_k[redo]) < 0.5)
-        ri = redo[good2]
-        x0_k[ri], s_k[ri] = r2.x0[good2], r2.s[good2]
-        B_k[ri], C_k[ri], var_k[ri] = r2.B[good2], r2.C[good2], r2.var_x0_unit[good2]
-        rss_k[ri], dof_k[ri] = r2.rss[good2], np.maximum(r2.dof[good2], 1.0)
-        pos = start[keep] + x0_k
-        xy = np.where(ax[:, None], np.c_[pos, line], np.c_[line, pos])
 
     if f_top > _CLIP_WARN:
         n_fb = int(thin[keep].sum())
@@ -340,11 +376,11 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         warnings.append(f"{100 * f_top:.2f} % of pixels are clipped at full brightness: lower the "
                         "exposure or backlight (clipped samples were left out of the edge fits"
                         f"{tail})")
-    nak = seeds.n_axis[keep]
+    nak = n_a[keep]
     # per-point noise: own residual pooled with the image's (nu_0 = 10 prior dof)
-    s2_k = (rss_k + _NU_POOL * pooled) / (dof_k + _NU_POOL)
-    std_px = np.sqrt(np.maximum(var_k, 0.0) * s2_k) * nak
-    sigma_px = s_k * nak
+    s2_k = (fit["rss"][keep] + _NU_POOL * pooled) / (dof[keep] + _NU_POOL)
+    std_px = np.sqrt(np.maximum(fit["var"][keep], 0.0) * s2_k) * nak
+    sigma_px = fit["s"][keep] * nak
     blur = float(np.median(sigma_px))
     if blur > 3.0:
         warnings.append(f"edges are blurred (sigma {blur:.1f} px): refocus for best accuracy")
@@ -353,9 +389,9 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
                         "narrow gaps, dust or noise): check focus, cleanliness and lighting")
     xy = xy + np.array([x_off, y_off], dtype=np.float64)
     sc = scale_seed[keep]
-    dark_lv = sil.dark_level + B_k * sc
-    bright_lv = sil.dark_level + (B_k + C_k) * sc
-    return EdgeSet(xy=xy, normal=normal, sigma_px=sigma_px, std_px=std_px, dark=dark_lv,
-                   bright=bright_lv, contour=contour.astype(int), closed=closed,
-                   n_dropped=int(n_dropped), noise_std=float(math.sqrt(pooled) * np.median(sc)),
-                   warnings=tuple(warnings), image_shape=tuple(int(s) for s in shape))
+    B_k, C_k = fit["B"][keep], fit["C"][keep]
+    return EdgeSet(xy=xy, normal=normal, sigma_px=sigma_px, std_px=std_px,
+                   dark=sil.dark_level + B_k * sc, bright=sil.dark_level + (B_k + C_k) * sc,
+                   contour=contour.astype(int), closed=closed, n_dropped=int(n_dropped),
+                   noise_std=float(math.sqrt(pooled) * np.median(sc)),
+                   warnings=tuple(warnings), image_shape=tuple(int(v) for v in shape))

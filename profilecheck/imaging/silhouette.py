@@ -127,7 +127,7 @@ def _poly_terms(x, y, degree):
     return np.stack(cols, axis=-1)
 
 
-def flatten_backlight(img, *, degree: int = 2) -> Silhouette:
+def flatten_backlight(img, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX) -> Silhouette:
     """Estimate the backlight and the dark level, and flatten the image.
 
     Parameters
@@ -140,6 +140,10 @@ def flatten_backlight(img, *, degree: int = 2) -> Silhouette:
         begin to chase glare spots and bend near the edges, which moves them (measured on
         rendered scenes: 0.002 px with degree 2, 0.03 px with degree 4 beside a glare spot).
         Lowered automatically when the bright field covers little of the image.
+    clear_px : float
+        The background is fitted only to bright pixels at least this far (px) from the
+        first split, beyond the blurred tails of the edges: 10 px suits blur sigma up to
+        2 px; use about 4 sigma + 2 for blurrier images (:func:`find_edges` does).
 
     Returns
     -------
@@ -162,6 +166,8 @@ def flatten_backlight(img, *, degree: int = 2) -> Silhouette:
         raise ValueError("img contains non-finite values")
     if not (isinstance(degree, (int, np.integer)) and 2 <= degree <= 6):
         raise ValueError(f"degree must be an int in 2..6, got {degree!r}")
+    if not (clear_px >= 0) or not math.isfinite(clear_px):
+        raise ValueError(f"clear_px must be finite and >= 0, got {clear_px!r}")
     rows, cols = a.shape
     f = min(1.0, _REDUCED_LONG_SIDE / max(rows, cols))
     small = cv2.resize(a, (max(8, round(cols * f)), max(8, round(rows * f))),
@@ -176,7 +182,7 @@ def flatten_backlight(img, *, degree: int = 2) -> Silhouette:
     dark0 = ~bright0
     # keep away from edges: erode both classes by _EDGE_CLEAR_PX full-resolution pixels
     # (at least 2 reduced pixels), beyond the blurred tails of any focused edge
-    rad = max(2, int(math.ceil(_EDGE_CLEAR_PX * f)))
+    rad = max(2, int(math.ceil(clear_px * f)))
     kern = cv2.getStructuringElement(cv2.MORPH_ELLIPSE, (2 * rad + 1, 2 * rad + 1))
     bright_core = cv2.erode(bright0.astype(np.uint8), kern).astype(bool)
     dark_core = cv2.erode(dark0.astype(np.uint8), kern).astype(bool)

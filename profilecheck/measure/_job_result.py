@@ -18,7 +18,12 @@ from ..errors import ImageError
 from ..quantity import Measured
 from ..verdict import DECISION_RULE, Check, overall
 
-__all__ = ["JobResult", "load_input", "calibration_hash", "undistort", "edge_points"]
+__all__ = ["JobResult", "load_input", "calibration_hash", "undistort", "edge_points",
+           "MAX_BLUR_PX"]
+
+#: Edge blur (sigma, px) beyond which a tool or height image is refused: corners and short
+#: edges lose their shape (common practice, no source).
+MAX_BLUR_PX = 4.0
 
 
 @dataclass(frozen=True)
@@ -141,21 +146,15 @@ def calibration_hash(calibration) -> str:
 
 
 def undistort(xy: np.ndarray, calibration) -> np.ndarray:
-    """Remove lens distortion from edge points when the calibration holds a lens model.
-
-    Points stay in px (``cv2.undistortPoints`` with ``P = K``, tight iteration criteria as
-    ``../shared/vision-notes.md`` section 3 recommends). Without a lens: unchanged.
-    """
+    """Remove lens distortion from edge points when the calibration holds a lens model
+    (:func:`profilecheck.calibration.lens.undistort_points`, points stay in px). Without a
+    lens: unchanged."""
     lens = getattr(calibration, "lens", None)
     if lens is None or not any(abs(float(v)) > 0 for v in lens.dist):
         return xy
-    import cv2
+    from ..calibration.lens import undistort_points
 
-    K = np.array([[lens.fx_px, 0, lens.cx_px], [0, lens.fy_px, lens.cy_px], [0, 0, 1.0]])
-    d = np.asarray(lens.dist, np.float64)
-    crit = (cv2.TERM_CRITERIA_COUNT | cv2.TERM_CRITERIA_EPS, 100, 1e-12)
-    out = cv2.undistortPointsIter(xy.reshape(-1, 1, 2).astype(np.float64), K, d, None, K, crit)
-    return out.reshape(-1, 2)
+    return np.asarray(undistort_points(xy, lens), float)
 
 
 def edge_points(img: np.ndarray, calibration, roi) -> tuple[Any, np.ndarray, float, tuple[str, ...]]:
@@ -170,6 +169,11 @@ def edge_points(img: np.ndarray, calibration, roi) -> tuple[Any, np.ndarray, flo
     blur = float(edges.blur_px) if len(edges.xy) else float("nan")
     if not math.isfinite(blur) or blur <= 0:
         blur = 1.0
+    if blur > MAX_BLUR_PX:
+        from ..errors import QualityError
+
+        raise QualityError(f"the image is out of focus (edge blur {blur:.1f} px, limit "
+                           f"{MAX_BLUR_PX:g} px): refocus and take the picture again")
     cal_blur = getattr(calibration, "blur_px", float("nan"))
     if math.isfinite(cal_blur) and cal_blur > 0 and blur > 1.6 * cal_blur:
         warnings += (f"the image is less sharp than the calibration image (edge blur "

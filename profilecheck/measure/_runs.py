@@ -120,8 +120,8 @@ def _chord_angles(xy: np.ndarray, s: np.ndarray, centres: np.ndarray, half_px: f
 
 def straight_runs(xy: np.ndarray, normal: np.ndarray, contour: np.ndarray, *,
                   weights: np.ndarray | None = None, min_length_px: float = 20.0,
-                  trim_px: float = 4.0, turn_tol_deg: float = 3.0,
-                  split_tol_px: float = 0.6, window_px: float = 5.0) -> list[Run]:
+                  trim_px: float = 4.0, turn_tol_deg: float = 4.0,
+                  split_tol_px: float = 0.6, window_px: float = 8.0) -> list[Run]:
     """Split ordered edge contours into straight runs and fit a line to each.
 
     Parameters

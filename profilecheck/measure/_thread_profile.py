@@ -292,6 +292,9 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         off = 0.0 if f.side == "left" else 0.5 * p_est
         numbered.append(Flank(f.side, int(round((xm - x0 - off) / p_est)), f.line, f.angle_rad,
                               f.std_angle_rad))
+    first = min(f.index for f in numbered)
+    numbered = [Flank(f.side, f.index - first, f.line, f.angle_rad, f.std_angle_rad)
+                for f in numbered]  # tooth 0 is the first one seen
     flanks = _dedupe(numbered)
 
     # Outlier flanks (chipped, burred): angle far from the others of the same side.
@@ -303,7 +306,7 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
             a = np.array([f.angle_rad for f in fl])
             med = np.median(a)
             mad = 1.4826 * np.median(np.abs(a - med))
-            lim = max(6 * mad, math.radians(1.5))
+            lim = max(6 * mad, math.radians(0.5))
             for f, ai in zip(fl, a):
                 if abs(ai - med) > lim:
                     bad_teeth.add(f.index)
@@ -330,11 +333,20 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         for c, v in zip(crests, lv):
             if abs(v - med) > lim:
                 bad_teeth.add(c.index)
-    if bad_teeth:
+    all_idx = [f.index for f in flanks]
+    ends = {min(all_idx), max(all_idx)} if all_idx else set()
+    inner_bad = sorted(bad_teeth - ends)
+    end_bad = sorted(bad_teeth & ends)
+    if inner_bad:
         warnings.append(
-            f"{len(bad_teeth)} tooth/teeth look damaged or out of place (chipped crest, burr "
+            f"{len(inner_bad)} tooth/teeth look damaged or out of place (chipped crest, burr "
             f"or drunken lead) and were left out: tooth no. "
-            + ", ".join(str(i + 1) for i in sorted(bad_teeth)))
+            + ", ".join(str(i + 1) for i in inner_bad))
+    if end_bad:
+        warnings.append("the tooth at each end of the thread that is not full form (run-out, "
+                        "chamfer, shoulder) was left out: tooth no. "
+                        + ", ".join(str(i + 1) for i in end_bad))
+    if bad_teeth:
         flanks = [f for f in flanks if f.index not in bad_teeth]
         crests = [c for c in crests if c.index not in bad_teeth]
         roots = [r for r in roots if r.index not in bad_teeth and r.index + 1 not in bad_teeth]
@@ -344,8 +356,8 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
     crest_idx = {c.index for c in crests}
     full = left_idx & right_idx & crest_idx
     n_teeth_seen = len(left_idx | right_idx)
-    if bad_teeth and len(bad_teeth) > max(1, n_teeth_seen // 3):
-        raise QualityError(f"{len(bad_teeth)} of {n_teeth_seen} teeth look damaged or out of "
+    if inner_bad and len(inner_bad) > max(1, n_teeth_seen // 3):
+        raise QualityError(f"{len(inner_bad)} of {n_teeth_seen} teeth look damaged or out of "
                            "place: the thread is chipped, torn or drunken, or dirt is on the "
                            "part; clean it and check the lead before trusting any reading")
     if len(full) < min_full_teeth:

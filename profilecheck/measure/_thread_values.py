@@ -160,9 +160,13 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
             cb, scb = _level(bm, kind)
             if math.isfinite(ct) and math.isfinite(cb):
                 dd = ct + cb
+                # arc apexes move with the first-order arc correction: 100 % of it as a
+                # rectangular model term (simulation: residuals reach about that)
+                d_raw = _level(raw["top"], kind)[0] + _level(raw["bottom"], kind)[0]
+                arc = ((dd - d_raw) / math.sqrt(3.0)) if math.isfinite(d_raw) else 0.0
                 dd = rim(dd) if rim else dd
                 meas[key] = _m(dd, math.sqrt(sct ** 2 + scb ** 2 + (2 * sb) ** 2 + (dd * rel) ** 2
-                                             + absorbed(dd, 2.0) ** 2 + floor ** 2),
+                                             + absorbed(dd, 2.0) ** 2 + floor ** 2 + arc ** 2),
                                "mm", len(t.crests if kind == "crest" else t.roots)
                                + len(bm.crests if kind == "crest" else bm.roots))
         pd = t.pitch_line_y + bm.pitch_line_y

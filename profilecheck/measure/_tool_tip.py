@@ -143,9 +143,7 @@ def fit_tip(xy: np.ndarray, left, right, apex: np.ndarray, bisector: np.ndarray,
     beta = 0.5 * (math.pi - math.acos(float(np.clip(left.normal @ right.normal, -1, 1))))
     margin = max(1.5 * sigma_e_px, 1.0)
     dl, dr = -left.distance(xy), -right.distance(xy)  # + inside the tool
-    ahead = (xy - apex) @ bisector
-    near = (ahead > -(8 * sigma_e_px + 200.0))
-    central = near & (dl > margin) & (dr > margin)
+    central = (dl > margin) & (dr > margin)
     pts = xy[central]
     n = len(pts)
     if n < MIN_TIP_POINTS:
@@ -335,6 +333,10 @@ def _small_tip(pix, apex, bisector, beta, sigma_e, n_central) -> TipForm:
     d_sig = abs(recession_px(beta, sigma_e * 1.1, 2 * tb * fd) - recession_px(beta, sigma_e, 2 * tb * fd))
     std = math.hypot(std_fit, tb * d_sig)
     what = "nose radius" if kind == "radius" else "flat"
-    return TipForm(kind, size, std, n, math.nan, math.nan,
+    centre = None
+    if kind == "radius":
+        c = apex - bisector * (size / math.sin(beta))
+        centre = (float(c[0]), float(c[1]))
+    return TipForm(kind, size, std, n, math.nan, math.nan, centre=centre,
                    note=f"tip too small to fit from edge points ({n_central} clear of the "
                         f"corners): {what} fitted with a blurred-wedge model to the tip's pixels")

@@ -305,7 +305,10 @@ def measure_height(image, calibration, *, reference: str = "point", axis=None,
         ub = math.hypot(ub, 0.5 / math.sqrt(3))
     std_b = ub * abs(float(shift_per_b @ up))
     s, us = calibration.mm_per_px, calibration.u_mm_per_px / 2
-    std_px = math.sqrt(var_tip + std_axis ** 2 + std_b ** 2)
+    # model term: edge location on a straight edge good to 0.02 px (vision-notes 1.3: phase
+    # bias of a 50 % / model fit up to 0.015 px at sigma_b = 1), on the tip and on the axis
+    std_model = 0.02 * math.sqrt(2)
+    std_px = math.sqrt(var_tip + std_axis ** 2 + std_b ** 2 + std_model ** 2)
     off_mm = off_px * s
     std_mm = math.hypot(std_px * s, off_px * us)
     n_pts = top.line.n + front.line.n

@@ -32,7 +32,6 @@ import numpy as np
 
 from ..calibration.model import Calibration
 from ..errors import MeasurementError, QualityError
-from ..quantity import K_COVERAGE, Measured
 from ..verdict import overall
 from . import _thread_profile as tp
 from ._thread_axis import AxisFrame, initial_axis, split_edges
@@ -40,13 +39,9 @@ from ._thread_overlays import build_overlays
 from ._thread_result import ThreadResult
 from ._thread_verdict import remaining_infeed, thread_checks
 from .helix import flank_shift_mm, lead_angle_rad, profile_shift_mm
-from .wires import lead_term_mm, virtual_over_wire
 
 __all__ = ["measure_thread", "ThreadResult"]
 
-#: Relative standard uncertainty given to the helix / line-of-sight model (10 % of the
-#: correction, treated as a rectangular bound: 0.1 / sqrt(3)).
-HELIX_MODEL_REL = 0.1 / math.sqrt(3.0)
 #: Edge contrast (bright - dark, linear units of full scale) below which edges are refused.
 MIN_CONTRAST = 0.15
 #: Edge blur (Gaussian sigma, px) beyond which the image is refused as out of focus.
@@ -290,8 +285,9 @@ def _form(spec: Any) -> dict[str, Any]:
 def _drops(form: dict[str, Any], prev: tp.LimbProfile | None) -> dict[str, Any]:
     """Keyword arguments of analyse_limb for the corner exclusion.
 
-    Without a spec the corner drop is 8 % of the depth seen (a first pass uses 8 % of the
-    2-98 % height range via analyse_limb's own provisional levels: 0 here).
+    With a spec the corner drop is the nominal rounding ``r (1 - sin theta)``; without one
+    it is 8 % of the depth found by the previous pass (0 on the first pass, where only the
+    ``3 sigma_e`` blur margin applies).
     """
     cd, rd = form["crest_drop"], form["root_drop"]
     if cd is None:

@@ -28,6 +28,7 @@ local codes and licensed practice take precedence.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -171,7 +172,6 @@ def _flank_angles(wedge: _runs.Wedge, axis: np.ndarray):
     out = []
     for run in (wedge.a, wedge.b):
         d = run.line.direction
-        c = run.index  # noqa: F841 (kept for clarity: run points lie behind the apex)
         mid = 0.5 * (run.start_xy + run.end_xy)
         if (mid - wedge.apex) @ d < 0:
             d = -d
@@ -311,6 +311,8 @@ def _tip_measured(tip: TipForm, beta: float, cal) -> tuple[str, Measured]:
         gauge_px = float(cal.gauge.get("size_mm", 0.0) or 0.0) / s
         frac = (1 - size_px / gauge_px) if gauge_px > size_px else 0.0
         ub = math.hypot(ub, 0.5 * frac / math.sqrt(3))
+    # model term: edge location good to 0.02 px on each side of the tip (vision-notes 1.3)
+    tip = dataclasses.replace(tip, std_px=math.hypot(tip.std_px, 0.02 * math.sqrt(2)))
     if tip.kind == "radius":
         # an outward edge bias b makes a convex nose read b larger
         r_px = tip.size_px - b
@@ -462,12 +464,39 @@ def _overlays(wedge, rl, rr, axis, shank_lines, tip: TipForm, cal):
     return out
 
 
+def _axis_reference(w, wedges, runs):
+    """For the tool point ``w``: (w, kind, axis direction, std angle rad) from a straight
+    work edge ahead of the point and roughly square to its bisector (preferred), or from a
+    centre whose bisector is roughly square to it; None if neither is in view."""
+    u = w.bisector
+    used = {id(w.a), id(w.b)}
+    flank = min(w.a.length_px, w.b.length_px)
+    square = math.sin(math.radians(20))
+    for r in runs:  # longest first
+        if id(r) in used or abs(r.line.direction @ u) > square or r.length_px < 2 * flank:
+            continue
+        if (0.5 * (r.start_xy + r.end_xy) - w.apex) @ u > 0:
+            return w, "work edge", r.line.direction, r.line.std_angle_rad
+    if abs(u[1]) < math.sqrt(0.5):
+        return None  # with a centre, the tool must point up or down at an axis across the image
+    for c in wedges:
+        if c is w or {id(c.a), id(c.b)} & used or abs(c.bisector @ u) > square:
+            continue
+        if abs(c.bisector[1]) > math.sqrt(0.5):
+            continue
+        return w, "centre", c.bisector, 0.5 * math.hypot(c.a.line.std_angle_rad,
+                                                          c.b.line.std_angle_rad)
+    return None
+
+
 def measure_squareness(image, calibration, *, roi=None) -> SquarenessResult:
     """Angle between a threading tool's bisector and the normal to the work's axis.
 
     One top view holds the tool's point and a reference for the axis direction: either a
     straight silhouette edge of the work (parallel to its axis) ahead of the point, or a
-    lathe centre's point (its bisector is the axis).
+    lathe centre's point (its bisector is the axis). A centre and a tool point look alike,
+    so with a centre the axis must run across the image (within 45 deg of the rows) and
+    the tool point up or down at it.
 
     Parameters
     ----------
@@ -493,35 +522,15 @@ def measure_squareness(image, calibration, *, roi=None) -> SquarenessResult:
     if not wedges:
         raise MeasurementError("no tool point found: the image shows no pair of straight "
                                "flanks meeting at a point")
-    # the tool's point: the wedge whose bisector is most nearly square to another reference
     best = None
-    for w in wedges:
-        used = {id(w.a), id(w.b)}
-        u = w.bisector
-        # a centre: another wedge whose bisector is square to this one's
-        for c in wedges:
-            if c is w or {id(c.a), id(c.b)} & used:
-                continue
-            if abs(c.bisector @ u) < math.sin(math.radians(20)):
-                cand = ("centre", c.bisector, math.hypot(c.a.line.std_angle_rad,
-                                                         c.b.line.std_angle_rad) / 2, c)
-                best = best or (w, cand)
-        for r in runs:
-            if id(r) in used or abs(r.line.direction @ u) > math.sin(math.radians(20)):
-                continue
-            mid = 0.5 * (r.start_xy + r.end_xy)
-            if (mid - w.apex) @ u <= 0 or r.length_px < 2 * min(w.a.length_px, w.b.length_px):
-                continue
-            cand = ("work edge", r.line.direction, r.line.std_angle_rad, r)
-            if best is None or best[1][0] == "centre":
-                best = (w, cand)
-            break
-        if best is not None and best[1][0] == "work edge":
+    for w in wedges:  # best-formed point first
+        best = _axis_reference(w, wedges, runs)
+        if best is not None:
             break
     if best is None:
         raise MeasurementError("no axis reference found: show a straight edge of the work "
                                "or a lathe centre in the same view as the tool's point")
-    w, (kind, axis_dir, std_axis, ref) = best
+    w, kind, axis_dir, std_axis = best
     normal = np.array([-axis_dir[1], axis_dir[0]])
     if normal @ w.bisector < 0:
         normal = -normal

@@ -247,13 +247,5 @@ def _as_path(p: Any) -> Path | None:
 
 def _add_action(outputs: Any, path: Path, action: Any) -> None:
     """Queue a non-file action (the log append) to run at ``outputs.commit()`` after the
-    files. Uses ``OutputSet.add_action`` when the class has one."""
-    add = getattr(outputs, "add_action", None)
-    if callable(add):
-        add(path, action)
-        return
-    pending = getattr(outputs, "_pending", None)
-    if isinstance(pending, list):
-        pending.append((path, action))
-        return
-    raise TypeError("outputs must be a commands._common.OutputSet")
+    files."""
+    outputs.add_action(path, action)

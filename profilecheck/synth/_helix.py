@@ -24,6 +24,11 @@ these candidate curves, evaluated exactly at each abscissa (bisection on the mon
 candidate curves) and with the corners of the envelope (where the winning candidate
 changes) located by bisection to 1e-12 mm.
 
+Turned chamfer (square view). An axisymmetric limit C(x) caps the solid at
+r <= min(R(x - a phi), C(x)); along one line of sight x is fixed, so candidates above C
+drop out and the cap competes as C cos(phi_c), phi_c the smallest |phi| with
+R(x - a phi) >= C.
+
 Lower limb. Rotating by pi about the axis maps the lower half onto the upper half of a
 thread whose profile is shifted by +a pi and viewed with tilt -gamma; so the lower
 outline is -(upper outline of R(u - a pi) at -gamma).
@@ -105,9 +110,16 @@ class _Candidates:
         self.v_inc = xb >= xa
         self.n_pieces = len(self.pk)
 
-    def evaluate(self, xi: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """Envelope height and winning candidate id at sorted abscissae ``xi``."""
+    def evaluate(self, xi: np.ndarray, cap=None) -> tuple[np.ndarray, np.ndarray]:
+        """Envelope height and winning candidate id at sorted abscissae ``xi``.
+
+        ``cap`` (square view only): a callable giving an axisymmetric limit radius C(x)
+        (a turned chamfer). The solid is then r <= min(R(x - a phi), C(x)); candidates
+        above C drop out and the cap itself competes as C cos(phi_c), phi_c the smallest
+        |phi| at which R(x - a phi) >= C (id -2).
+        """
         xi = np.asarray(xi, dtype=float)
+        cv = None if cap is None else np.asarray(cap(xi), dtype=float)
         best = np.full(len(xi), -np.inf)
         who = np.full(len(xi), -1, dtype=np.int64)
         a, c, s, tg = self.a, self.c, self.s, self.tg
@@ -130,7 +142,9 @@ class _Candidates:
                 right = (xm < target) == inc
                 lo = np.where(right, mid, lo)
                 hi = np.where(right, hi, mid)
-            _, eta, _ = _gen_point(kk, uu0, pp, 0.5 * (lo + hi), a, tg, c, s)
+            _, eta, phi = _gen_point(kk, uu0, pp, 0.5 * (lo + hi), a, tg, c, s)
+            if cv is not None:
+                eta = np.where(eta / np.cos(phi) <= cv[gi] + 1e-12, eta, -np.inf)
             self._scatter_max(best, who, gi, eta, pid)
         # corners
         if len(self.vu):
@@ -153,8 +167,48 @@ class _Candidates:
                     lo = np.where(right, mid, lo)
                     hi = np.where(right, hi, mid)
                 _, eta = _vertex_point(uk, rk, 0.5 * (lo + hi), a, c, s)
+                if cv is not None:
+                    eta = np.where(rk <= cv[gi] + 1e-12, eta, -np.inf)
                 self._scatter_max(best, who, gi, eta, vid + self.n_pieces)
+        if cv is not None:
+            val = self._cap_values(xi, cv)
+            better = val > best
+            best[better] = val[better]
+            who[better] = -2
         return best, who
+
+    def _cap_values(self, x: np.ndarray, cv: np.ndarray) -> np.ndarray:
+        """C cos(phi_c) for the square view (see :meth:`evaluate`)."""
+        a = self.a
+        out = np.full(len(x), -np.inf)
+        live = np.isfinite(cv) & (cv > 0)
+        if not np.any(live):
+            return out
+        xl, cl = x[live], cv[live]
+        prof = self.prof
+        span = min(abs(a) * math.pi / 2 * 0.999, prof.pitch_mm)
+        d = np.linspace(-span, span, 1201)
+        rr = prof.radius(xl[:, None] - d[None, :])
+        ok = rr >= cl[:, None]
+        dist = np.where(ok, np.abs(d)[None, :], np.inf)
+        j = np.argmin(dist, axis=1)
+        found = np.isfinite(dist[np.arange(len(xl)), j])
+        # refine between the first sample at or above C and its neighbour toward d = 0
+        dj = d[j]
+        inner = np.where(dj > 0, np.maximum(j - 1, 0), np.minimum(j + 1, len(d) - 1))
+        di = d[inner]
+        at_zero = ok[np.arange(len(xl)), j] & (np.abs(dj) == np.min(np.abs(d)))
+        lo, hi = di.copy(), dj.copy()  # lo below C (or at the centre), hi at/above C
+        for _ in range(40):
+            mid = 0.5 * (lo + hi)
+            above = prof.radius(xl - mid) >= cl
+            hi = np.where(above, mid, hi)
+            lo = np.where(above, lo, mid)
+        dd = np.where(at_zero, dj, hi)
+        val = cl * np.cos(dd / a)
+        val = np.where(found, val, -np.inf)
+        out[live] = val
+        return out
 
     @staticmethod
     def _scatter_max(best, who, gi, val, ids):
@@ -167,15 +221,16 @@ class _Candidates:
         who[g[better]] = w[better]
 
 
-def envelope(prof: AxialProfile, a: float, gamma_rad: float, xi: np.ndarray) -> np.ndarray:
-    """Upper-limb outline height at the image abscissae ``xi`` (sorted, mm)."""
+def envelope(prof: AxialProfile, a: float, gamma_rad: float, xi: np.ndarray, cap=None) -> np.ndarray:
+    """Upper-limb outline height at the image abscissae ``xi`` (mm); ``cap`` as in
+    :func:`limb_outline` (square view only)."""
     xi = np.asarray(xi, dtype=float)
     lo, hi = float(xi.min()), float(xi.max())
     margin = abs(a) * math.pi / 2 + 2 * prof.pitch_mm + abs(math.tan(gamma_rad)) * 2 * prof.info.get("major_d_mm", 0)
     cand = _Candidates(prof.tiled(lo / math.cos(gamma_rad) - margin, hi / math.cos(gamma_rad) + margin),
                        a, gamma_rad)
     order = np.argsort(xi)
-    best, _ = cand.evaluate(xi[order])
+    best, _ = cand.evaluate(xi[order], cap)
     out = np.empty_like(best)
     out[order] = best
     return out
@@ -183,7 +238,7 @@ def envelope(prof: AxialProfile, a: float, gamma_rad: float, xi: np.ndarray) -> 
 
 def limb_outline(prof: AxialProfile, lead_mm: float, xi_start: float, xi_stop: float, *,
                  right_hand: bool = True, gamma_deg: float = 0.0, limb: str = "upper",
-                 step_mm: float | None = None) -> np.ndarray:
+                 step_mm: float | None = None, cap=None) -> np.ndarray:
     """Outline of one limb of a thread between two image abscissae.
 
     Parameters
@@ -202,6 +257,9 @@ def limb_outline(prof: AxialProfile, lead_mm: float, xi_start: float, xi_stop: f
     step_mm : float, optional
         Sampling step along the axis (default P/1500); the corners of the envelope are
         located exactly and inserted.
+    cap : callable, optional
+        Square view only: C(x) -> radius of an axisymmetric limit (a turned chamfer); the
+        outline is then that of the solid r <= min(R(x - a phi), C(x)), exactly.
 
     Returns
     -------
@@ -209,6 +267,8 @@ def limb_outline(prof: AxialProfile, lead_mm: float, xi_start: float, xi_stop: f
     """
     if limb not in ("upper", "lower"):
         raise ValueError(f"limb must be 'upper' or 'lower', got {limb!r}")
+    if cap is not None and gamma_deg != 0:
+        raise ValueError("cap needs the square view (gamma_deg = 0)")
     L = float(lead_mm)
     if not math.isfinite(L) or L <= 0:
         raise ValueError(f"lead_mm must be > 0, got {lead_mm!r}")
@@ -230,7 +290,7 @@ def limb_outline(prof: AxialProfile, lead_mm: float, xi_start: float, xi_stop: f
     margin = abs(a) * math.pi / 2 + 2 * prof.pitch_mm + abs(math.tan(g)) * prof.info.get("major_d_mm", 0)
     cand = _Candidates(prof.tiled(min(xi_start, xi_start / math.cos(g)) - margin,
                                   max(xi_stop, xi_stop / math.cos(g)) + margin), a, g)
-    eta, who = cand.evaluate(xi)
+    eta, who = cand.evaluate(xi, cap)
     if not np.all(np.isfinite(eta)):
         raise RuntimeError("thread outline: no surface point found for some abscissae")
     # corners of the envelope: where the winning candidate changes
@@ -241,7 +301,7 @@ def limb_outline(prof: AxialProfile, lead_mm: float, xi_start: float, xi_stop: f
         for _ in range(36):  # step / 2^36: < 1e-13 mm
             mid = 0.5 * (lo + hi)
             order = np.argsort(mid)
-            _, wm_sorted = cand.evaluate(mid[order])
+            _, wm_sorted = cand.evaluate(mid[order], cap)
             wm = np.empty_like(wm_sorted)
             wm[order] = wm_sorted
             same = wm == wl
@@ -249,7 +309,7 @@ def limb_outline(prof: AxialProfile, lead_mm: float, xi_start: float, xi_stop: f
             hi = np.where(same, hi, mid)
         ins = 0.5 * (lo + hi)
         order = np.argsort(ins)
-        ev, _ = cand.evaluate(ins[order])
+        ev, _ = cand.evaluate(ins[order], cap)
         xi = np.concatenate([xi, ins[order]])
         eta = np.concatenate([eta, ev])
         o = np.argsort(xi, kind="stable")

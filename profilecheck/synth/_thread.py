@@ -71,6 +71,9 @@ def thread_silhouette(profile: AxialProfile | np.ndarray | Callable, major_d_mm:
     length_mm : float
         Axial length of the outline, from ``x_start_mm``.
     right_hand : bool
+    pitch_mm : float, optional
+        Pitch when the profile spans several whole pitches (e.g. the polyline of
+        ``ThreadSpec.axial_profile``); default the profile's span. Required for a callable.
     tilt_deg : float
         Line of sight (lens into scene) turned toward +x by this angle; for a right-hand
         thread +psi (the lead angle) makes the *lower* limb show the axial profile
@@ -95,10 +98,14 @@ def thread_silhouette(profile: AxialProfile | np.ndarray | Callable, major_d_mm:
     starts = int(starts)
     if starts < 1:
         raise ValueError(f"starts must be >= 1, got {starts!r}")
+    pitch = float(pitch_mm) if pitch_mm is not None else prof.pitch_mm
+    whole = prof.pitch_mm / pitch
+    if pitch <= 0 or abs(whole - round(whole)) > 1e-9 * max(1.0, whole):
+        raise ValueError(f"pitch_mm ({pitch_mm}) must divide the profile's span ({prof.pitch_mm})")
     if lead_mm is None:
-        lead_mm = starts * prof.pitch_mm
-    if abs(float(lead_mm) - starts * prof.pitch_mm) > 1e-9 * max(1.0, float(lead_mm)):
-        raise ValueError(f"lead_mm ({lead_mm}) must equal starts x pitch ({starts} x {prof.pitch_mm})")
+        lead_mm = starts * pitch
+    if abs(float(lead_mm) - starts * pitch) > 1e-9 * max(1.0, float(lead_mm)):
+        raise ValueError(f"lead_mm ({lead_mm}) must equal starts x pitch ({starts} x {pitch})")
     if major_d_mm is not None:
         rmax = float(prof.info.get("major_d_mm", np.nan)) / 2
         if not abs(rmax - float(major_d_mm) / 2) <= 1e-6:
@@ -215,12 +222,14 @@ def _pinhole_outline(camera, profile, lead, right_hand, x_start, length, axis_y,
     return [np.vstack([top, bot[::-1]])], {"upper": top.tolist(), "lower": bot.tolist()}
 
 
-def _clip_below(outline: np.ndarray, cap: Callable[[np.ndarray], np.ndarray]) -> np.ndarray:
-    """min(outline(x), cap(x)) with crossing points inserted (cap piecewise linear)."""
+def _clip_below(outline: np.ndarray, cap: Callable[[np.ndarray], np.ndarray], *,
+                above: bool = False) -> np.ndarray:
+    """min(outline(x), cap(x)) (or max with ``above``) with crossing points inserted."""
     x, y = outline[:, 0], outline[:, 1]
     cy = cap(x)
     d = y - cy
-    pts_x, pts_y = [x[0]], [min(y[0], cy[0])]
+    pick = max if above else min
+    pts_x, pts_y = [x[0]], [pick(y[0], cy[0])]
     for i in range(1, len(x)):
         if (d[i - 1] > 0) != (d[i] > 0) and d[i] != d[i - 1]:
             t = d[i - 1] / (d[i - 1] - d[i])
@@ -228,7 +237,7 @@ def _clip_below(outline: np.ndarray, cap: Callable[[np.ndarray], np.ndarray]) ->
             pts_x.append(xc)
             pts_y.append(y[i - 1] + t * (y[i] - y[i - 1]))
         pts_x.append(x[i])
-        pts_y.append(min(y[i], cy[i]))
+        pts_y.append(pick(y[i], cy[i]))
     return np.column_stack([pts_x, pts_y])
 
 
@@ -238,7 +247,8 @@ def render_thread(camera: Camera, *, profile: AxialProfile | None = None, pitch_
                   axis_y_mm: float = 0.0, tilt_deg: float = 0.0, pitch_error_mm: float = 0.0,
                   chamfer_mm: float = 0.0, shank_length_mm: float = 0.0,
                   shank_d_mm: float | None = None, groove_length_mm: float = 0.0,
-                  groove_d_mm: float | None = None, chip: dict | None = None,
+                  groove_d_mm: float | None = None, runout_mm: float = 0.0,
+                  chip: dict | None = None,
                   step_mm: float | None = None, **render_kw: Any) -> tuple[np.ndarray, dict]:
     """Render a threaded part, axis along world x, with its truth.
 
@@ -262,6 +272,10 @@ def render_thread(camera: Camera, *, profile: AxialProfile | None = None, pitch_
     pitch_error_mm : float
         Added to the pitch (a lead error of starts x this): the part is made with the
         wrong pitch; truth keeps both.
+    runout_mm : float
+        Thread run-out at the left end: over this length the groove fades linearly from
+        full depth to the crest (as when the tool is withdrawn while still cutting);
+        applied as max(outline, ramp) in image x.
     chip : dict, optional
         A chipped crest on the upper limb: ``{'x_mm': centre along the axis (thread frame,
         from the thread's left end), 'width_mm', 'depth_mm'}``: the outline is cut down by
@@ -280,10 +294,18 @@ def render_thread(camera: Camera, *, profile: AxialProfile | None = None, pitch_
 
     Notes
     -----
-    Shank, groove and end face are exact for the square view (rays keep their x); the
-    chamfer is taken as min(outline, cone line) in image x, which differs from the true
-    intersection by up to R phi^2/2 (phi the contour-generator angle, ~0.1 rad) right where
-    the chamfer meets a flank. For tilted views all of them are applied in image x.
+    Pinhole camera (``camera.working_distance_mm`` set): every image column's lines of sight
+    are cast against the helical solid (``_raycast``: bisection on the hit test, columns
+    every 0.5 px, envelope corners between columns joined by chords) and the outline is
+    rendered in px; only the plain thread is modelled there (no shank, groove, chamfer,
+    run-out or chip; its ends are cut square in the image) and ``outline_px_raycast``
+    holds the result. It takes a few seconds per frame.
+
+    Shank, groove, end face and chamfer are exact for the square view (rays keep their x;
+    the chamfer cone enters the envelope as an axisymmetric cap, see ``_helix``); the
+    chip and the run-out are cut into the outline in image x. For tilted views all of them
+    are applied in image x (the chamfer as min(outline, cone line), which misses the true
+    intersection by up to R phi^2/2 where the chamfer meets a flank, phi ~ 0.1 rad).
     """
     if not isinstance(camera, Camera):
         raise TypeError(f"camera must be a synth.Camera, got {type(camera).__name__}")
@@ -318,14 +340,35 @@ def render_thread(camera: Camera, *, profile: AxialProfile | None = None, pitch_
         inside[:, 1] = np.minimum(inside[:, 1], r_maj - cd)
         up = np.vstack([up[keep & (up[:, 0] < cx)], inside, up[keep & (up[:, 0] > cx)]])
     end_x = L * c
+    if runout_mm > 0:
+        lr = float(runout_mm) * c
+
+        def ramp(x):
+            return np.where(x < lr, r_maj - (r_maj - r_min) * x / lr, -np.inf)
+
+        up = _clip_below(up, ramp, above=True)
+        lo = _clip_below(lo * [1, -1], ramp, above=True) * [1, -1]
     if chamfer_mm > 0:
         ch = float(chamfer_mm)
 
         def cap(x):  # 45 deg cone from radius r_maj - ch at the end face
             return (r_maj - ch) + (end_x - x)
 
-        up = _clip_below(up, cap)
-        lo = _clip_below(lo * [1, -1], cap) * [1, -1]
+        if tilt_deg == 0:
+            # exact: the outline of min(helical solid, cone) over the chamfer's length
+            x_ch = end_x - ch
+            for name in ("upper", "lower"):
+                cur = up if name == "upper" else lo
+                capped = limb_outline(profile, lead, x_ch, end_x, right_hand=right_hand,
+                                      limb=name, step_mm=step_mm, cap=cap)
+                cur = np.vstack([cur[cur[:, 0] < x_ch], capped])
+                if name == "upper":
+                    up = cur
+                else:
+                    lo = cur
+        else:
+            up = _clip_below(up, cap)
+            lo = _clip_below(lo * [1, -1], cap) * [1, -1]
     # left of the thread: groove then shank (drawn in image x)
     left: list[np.ndarray] = []
     xg = 0.0
@@ -366,10 +409,11 @@ def render_thread(camera: Camera, *, profile: AxialProfile | None = None, pitch_
         "lead_angle_deg": math.degrees(math.atan(tpsi)), "tilt_deg": tilt_deg,
         "thread_x_mm": [x_start, x_start + L], "axis_y_mm": axis_y_mm,
         "axis_px": camera.world_to_px(np.array([[x_start, axis_y_mm], [x_start + L, axis_y_mm]])).tolist(),
-        "chamfer_mm": chamfer_mm, "chip": chip,
+        "chamfer_mm": chamfer_mm, "runout_mm": runout_mm, "chip": chip,
         "apparent": apparent, "apparent_pitch_d_mm": a_pd,
-        "apparent_note": ("outline values read by line fits over 30-70 % of the depth; axial "
-                          "distances divided by cos(tilt); 'left' = flank facing -x on both limbs"),
+        "apparent_note": ("outline values read by line fits over 30-70 % of the depth of the plain "
+                          "thread (before chip, run-out, chamfer); axial distances divided by "
+                          "cos(tilt); 'left' = flank facing -x on both limbs"),
         "formula": {
             "pd_error_upper_mm": helix_pd_error_mm(info["pitch_d_mm"], lead, flank_mean, -hand * tilt_deg),
             "pd_error_lower_mm": helix_pd_error_mm(info["pitch_d_mm"], lead, flank_mean, hand * tilt_deg),
@@ -378,7 +422,7 @@ def render_thread(camera: Camera, *, profile: AxialProfile | None = None, pitch_
         "outline_mm": {"upper": (up + shift).tolist(), "lower": (lo + shift).tolist()},
     }
     if camera.pinhole:
-        if shank_length_mm or groove_length_mm or chamfer_mm or chip:
+        if shank_length_mm or groove_length_mm or chamfer_mm or chip or runout_mm:
             raise ValueError("pinhole thread renders take the plain thread only: no shank, "
                              "groove, chamfer or chip")
         polys_px, outl = _pinhole_outline(camera, profile, lead, right_hand, x_start, L, axis_y_mm,

@@ -43,6 +43,8 @@ class JobOutcome:
         The library's own result object.
     elapsed_s : float
         Wall time of the library call.
+    roi : tuple or None
+        The region the library was asked to search (live tracking), None = whole frame.
     """
 
     mode: str
@@ -52,6 +54,7 @@ class JobOutcome:
     calibration: Any = None
     result: Any = None
     elapsed_s: float = float("nan")
+    roi: Any = None
 
     @property
     def verdict(self) -> str:
@@ -115,7 +118,8 @@ def calibration_report(cal: Any, image_name: str = "") -> dict:
 
 
 def run_job(backend: Backend, mode: str, image: np.ndarray, calibration: Any,
-            params: JobParams, *, image_name: str = "", roi: Any = None) -> JobOutcome:
+            params: JobParams, *, image_name: str = "", calibration_path: str = "",
+            roi: Any = None) -> JobOutcome:
     """Run one job through the library.
 
     Parameters
@@ -131,7 +135,11 @@ def run_job(backend: Backend, mode: str, image: np.ndarray, calibration: Any,
     params : JobParams
         The job's inputs.
     image_name : str
-        Recorded as ``report['image']`` when the library gave none.
+        Recorded as ``report['image']`` when the library was given an array (as the command
+        line records the path it was given).
+    calibration_path : str
+        The calibration file, recorded as ``report['calibration']['file']`` like the
+        command line does ('' = not from a file).
     roi : optional
         Passed to the height job (live tracking).
 
@@ -192,6 +200,8 @@ def run_job(backend: Backend, mode: str, image: np.ndarray, calibration: Any,
     report = dict(res.to_dict())
     if image_name and report.get("image") in (None, "", "<array>"):
         report["image"] = image_name
+    if calibration_path and isinstance(report.get("calibration"), dict):
+        report["calibration"] = dict(report["calibration"], file=calibration_path)
     return JobOutcome(mode, report, tuple(getattr(res, "overlays", ()) or ()),
                       tuple(getattr(res, "warnings", ()) or ()), result=res,
-                      elapsed_s=time.perf_counter() - t0)
+                      elapsed_s=time.perf_counter() - t0, roi=roi if mode == "height" else None)

@@ -88,8 +88,10 @@ def mm_text(value: float, u: float | None, unit: str = "mm") -> str:
         d = _decimals(u, 2, 4)
         s = f"{value:.{d}f}"
         return f"{s} \u00b1 {u:.{d}f}\u00b0" if u is not None else f"{s}\u00b0"
-    if unit == "mm/px":
-        return f"{value:.6f} \u00b1 {u:.6f} mm/px" if u is not None else f"{value:.6f} mm/px"
+    if unit == "mm/px":  # a scale: its uncertainty reads best relative, in parts per million
+        if u is None or not value > 0:
+            return f"{value:.7f} mm/px"
+        return f"{value:.7f} mm/px \u00b1 {u / value * 1e6:.0f} ppm"
     if unit != "mm":
         return f"{value:.4g} \u00b1 {u:.2g} {unit}" if u is not None else f"{value:.4g} {unit}"
     d = _decimals(u, 4, 6)
@@ -109,7 +111,7 @@ def inch_text(value_mm: float, u_mm: float | None, unit: str = "mm") -> str:
         txt = f"{sign}{d}\u00b0 {m:04.1f}'"
         return txt + (f" \u00b1 {u_mm * 60.0:.1f}'" if u_mm is not None else "")
     if unit == "mm/px":
-        return f"{value_mm / MM_PER_INCH:.7f} in/px"
+        return f"{value_mm / MM_PER_INCH:.8f} in/px"
     if unit != "mm":
         return ""
     v = value_mm / MM_PER_INCH

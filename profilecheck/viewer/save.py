@@ -1,18 +1,24 @@
 """Saving what the viewer shows (no Qt): the annotated picture, the raw frame beside it,
 and the JSON and job sheet the command line writes for the same measurement.
 
-All files of one save are prepared in memory first and then written atomically together
-(:class:`profilecheck.commands._common.OutputSet`), so a failure leaves nothing half-written.
+The measurement files go through the command line's own writer
+(:func:`profilecheck.report.outputs.add_standard_outputs`), so ``STEM.json``, ``STEM.png``
+and ``STEM.html`` are what ``profilecheck thread|tool|height IMAGE --json --annotate
+--sheet`` writes for the same picture and calibration. All files of one save are prepared
+first and then written atomically together (:class:`profilecheck.commands._common.
+OutputSet`), so a failure leaves nothing half-written.
 """
 
 from __future__ import annotations
 
+import argparse
+import json
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 
-from ..commands._common import OutputSet, dumps_json
+from ..commands._common import OutputSet
 from ..errors import ProfilecheckError
 
 __all__ = ["SavedFiles", "save_outcome", "output_paths"]
@@ -20,12 +26,11 @@ __all__ = ["SavedFiles", "save_outcome", "output_paths"]
 
 @dataclass(frozen=True)
 class SavedFiles:
-    """Paths written by :func:`save_outcome` (``sheet`` None when not written) and notes."""
+    """Paths written by :func:`save_outcome` (``sheet`` None when not written)."""
     annotated: Path
     raw: Path
     json: Path
     sheet: Path | None
-    notes: tuple[str, ...] = ()
 
 
 def output_paths(stem: str | Path) -> dict[str, Path]:
@@ -53,22 +58,34 @@ def _raw_png(raw: np.ndarray) -> bytes:
     return buf.tobytes()
 
 
+def _bytes_writer(data: bytes):
+    def write(tmp: Path) -> None:
+        tmp.write_bytes(data)
+    return write
+
+
 def save_outcome(stem: str | Path, outcome, raw: np.ndarray, image: np.ndarray, *,
-                 spec=None) -> SavedFiles:
-    """Write the four files of one measurement.
+                 image_path: str | None = None, calibration_path: str | None = None,
+                 job: str | None = None) -> SavedFiles:
+    """Write the files of one job.
 
     Parameters
     ----------
     stem : str or Path
         Path without suffix; see :func:`output_paths`.
     outcome : JobOutcome
-        What the job produced (its report is written as the CLI's JSON).
+        What the job produced. A measurement writes its report JSON, the annotated picture
+        and the job sheet exactly as the command line does; a calibration writes the
+        calibration file (its own format) and the picture, no sheet.
     raw : ndarray
-        The frame as read from the file or camera.
+        The frame as read from the file or camera, written untouched as ``STEM_raw.png``.
     image : ndarray
         The grey picture in [0, 1] the job measured (drawn under the overlays).
-    spec : ThreadSpec or dict, optional
-        The thread specification, shown on the job sheet.
+    image_path, calibration_path : str, optional
+        The files the job came from (the sheet's job name defaults to the picture's name,
+        as on the command line).
+    job : str, optional
+        Job name for the sheet (default: the picture's file name, else the stem).
 
     Returns
     -------
@@ -81,38 +98,30 @@ def save_outcome(stem: str | Path, outcome, raw: np.ndarray, image: np.ndarray, 
     """
     if outcome is None:
         raise ProfilecheckError("nothing to save yet: run a job first")
-    from ..report.annotate import draw_overlays, encode_png, write_bytes_atomic
+    from ..report.annotate import draw_overlays, encode_png
+    from ..report.outputs import add_standard_outputs, prepare_outputs
 
     paths = output_paths(stem)
-    for k, p in paths.items():
-        OutputSet.check_path(p, {"annotated": "annotated picture", "raw": "raw frame",
-                                 "json": "report", "sheet": "job sheet"}[k])
-    annotated = encode_png(draw_overlays(image, outcome.overlays))
+    OutputSet.check_path(paths["raw"], "raw frame")
     raw_png = _raw_png(raw)
-    notes: list[str] = []
-    sheet_html = None
-    if outcome.mode != "calibrate":
-        try:
-            from ..report.sheet import render_sheet
-        except ImportError:
-            notes.append("job sheet not written: the report package has no job sheet yet")
-        else:
-            if spec is not None and hasattr(spec, "to_dict"):
-                spec = spec.to_dict()
-            sheet_html = render_sheet(outcome.report, annotated,
-                                      spec=spec if isinstance(spec, dict) else None)
     if outcome.mode == "calibrate" and outcome.calibration is not None:
-        import json
-        text = json.dumps(outcome.calibration.to_dict(), indent=2, sort_keys=True,
-                          allow_nan=False) + "\n"  # the calibration file's own format
-    else:
-        text = dumps_json(outcome.report)
-    out = OutputSet()
-    out.add_writer(paths["annotated"], lambda t, d=annotated: write_bytes_atomic(t, d))
-    out.add_writer(paths["raw"], lambda t, d=raw_png: write_bytes_atomic(t, d))
-    out.add_text(paths["json"], text)
-    if sheet_html is not None:
-        out.add_text(paths["sheet"], sheet_html)
+        for k in ("annotated", "json"):
+            OutputSet.check_path(paths[k], k)
+        out = OutputSet()
+        out.add_writer(paths["annotated"],
+                       _bytes_writer(encode_png(draw_overlays(image, outcome.overlays))))
+        out.add_text(paths["json"], json.dumps(outcome.calibration.to_dict(), indent=2,
+                                               sort_keys=True, allow_nan=False) + "\n")
+        out.add_writer(paths["raw"], _bytes_writer(raw_png))
+        out.commit()
+        return SavedFiles(paths["annotated"], paths["raw"], paths["json"], None)
+    args = argparse.Namespace(json=paths["json"], annotate=paths["annotated"],
+                              sheet=paths["sheet"], csv=None, log=None,
+                              job=job or (None if image_path else paths["json"].stem),
+                              image=image_path, cal=calibration_path)
+    out = prepare_outputs(args)
+    add_standard_outputs(out, args, outcome.report, image, image_path=image_path,
+                         calibration_path=calibration_path, overlays=outcome.overlays)
+    out.add_writer(paths["raw"], _bytes_writer(raw_png))
     out.commit()
-    return SavedFiles(paths["annotated"], paths["raw"], paths["json"],
-                      paths["sheet"] if sheet_html is not None else None, tuple(notes))
+    return SavedFiles(paths["annotated"], paths["raw"], paths["json"], paths["sheet"])

@@ -201,21 +201,28 @@ class MainWindow(QMainWindow):
             m.set_status("Nothing to save yet: run a job first.")
             return None
         from .frames import to_unit_grey
-        spec = None
-        if out.mode in ("thread", "tool") and m.params.designation.strip():
-            try:
-                spec = self.backend.thread_spec(m.params.designation.strip())
-            except ProfilecheckError:
-                spec = None
+        if raw is m.raw_frame and m.image is not None:
+            grey = m.image  # what the job measured (load_image's grey for a file)
+        else:
+            grey = to_unit_grey(raw) if raw.dtype.kind in "ui" else raw
+        from_file = m.image_name and not m.image_name.startswith("live:") and \
+            Path(m.image_name).is_file()
         try:
-            saved = save_outcome(stem, out, raw, to_unit_grey(raw) if raw.dtype.kind in "ui" else raw,
-                                 spec=spec)
+            if out.roi is not None:
+                # a tracked live frame: measure it whole, so the files are what the command
+                # line writes for this picture
+                from .jobs import run_job
+                out = run_job(self.backend, out.mode, grey, m.calibration, m.params,
+                              image_name=out.report.get("image") or m.image_name,
+                              calibration_path=m.calibration_path)
+            saved = save_outcome(stem, out, raw, grey,
+                                 image_path=m.image_name if from_file else None,
+                                 calibration_path=m.calibration_path or None)
         except ProfilecheckError as e:
             m.set_status(f"Not saved: {' '.join(str(e).split())}")
             return None
-        extra = f" ({'; '.join(saved.notes)})" if saved.notes else ""
         m.set_status(f"Saved {saved.annotated.name}, {saved.raw.name}, {saved.json.name}"
-                     + (f", {saved.sheet.name}" if saved.sheet else "") + extra + ".")
+                     + (f", {saved.sheet.name}" if saved.sheet else "") + ".")
         return saved
 
     def save_calibration(self, path: str | Path) -> bool:
