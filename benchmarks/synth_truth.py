@@ -62,19 +62,23 @@ def edge_bias(ss: int, sigma: float = 1.0) -> float:
     return worst
 
 
+def _timed(fn, *args, **kw) -> str:
+    w, c = time.perf_counter(), time.process_time()
+    fn(*args, **kw)
+    return f"{time.process_time() - c:.2f} s CPU ({time.perf_counter() - w:.2f} s wall)"
+
+
 def main() -> None:
     print("1. straight-edge bias of the 50 % level (sigma 1 px), worst of 30 edges")
     for ss in (2, 4, 8):
         print(f"   supersample {ss}: {edge_bias(ss):.2e} px  (target < 5e-3)")
     print("2. render time, 1600 x 1200")
     cam = Camera(0.01, (1600, 1200), rotation_deg=2.0)
-    t = time.perf_counter()
-    render_thread(cam, pitch_mm=1.0, major_d_mm=6.0, thread_length_mm=20.0, vignetting=0.15)
-    print(f"   M6x1 thread across the frame: {time.perf_counter() - t:.2f} s")
+    print("   M6x1 thread across the frame: " + _timed(
+        render_thread, cam, pitch_mm=1.0, major_d_mm=6.0, thread_length_mm=20.0, vignetting=0.15))
     pc = Camera(0.01, (1600, 1200), working_distance_mm=40.0, k1=-0.2)
-    t = time.perf_counter()
-    render_checkerboard(pc, squares=(14, 10), square_mm=0.8, tilt_x_deg=15.0, tilt_y_deg=-12.0)
-    print(f"   14 x 10 checkerboard, pinhole + distortion: {time.perf_counter() - t:.2f} s")
+    print("   14 x 10 checkerboard, pinhole + distortion: " + _timed(
+        render_checkerboard, pc, squares=(14, 10), square_mm=0.8, tilt_x_deg=15.0, tilt_y_deg=-12.0))
     print("3. helix: outline values vs first-order formula vs vision-notes s5 brute force")
     cases = [("M3x0.5", axial_profile_iso(0.5, 3.0), 0.5, None),
              ("M6x1", axial_profile_iso(1.0, 6.0), 1.0, 28.1),
@@ -94,9 +98,7 @@ def main() -> None:
               f"{(f'{ref:.1f}' if ref else '-'):>7s}")
     print("4. pinhole ray-cast thread render (Z = 40 mm), 400 x 1200 px")
     pc = Camera(0.01, (400, 1200), working_distance_mm=40.0)
-    t = time.perf_counter()
-    render_thread(pc, pitch_mm=1.5, major_d_mm=10.0, thread_length_mm=6.0)
-    print(f"   {time.perf_counter() - t:.2f} s")
+    print("   " + _timed(render_thread, pc, pitch_mm=1.5, major_d_mm=10.0, thread_length_mm=6.0))
 
 
 if __name__ == "__main__":

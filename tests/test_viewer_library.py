@@ -122,9 +122,11 @@ def test_saved_files_are_what_the_command_line_writes(qtbot, win, height_frame, 
     saved = win.save_results(tmp_path / "out")
     assert saved is not None and saved.sheet is not None
     # the same picture and calibration through the command line's height command
-    cli_json = tmp_path / "cli.json"
-    assert main(["height", str(pic), "--cal", str(calf), "--json", str(cli_json)]) == 0
+    cli_json, cli_png = tmp_path / "cli.json", tmp_path / "cli.png"
+    assert main(["height", str(pic), "--cal", str(calf), "--json", str(cli_json),
+                 "--annotate", str(cli_png)]) == 0
     assert saved.json.read_text() == cli_json.read_text()
+    assert saved.annotated.read_bytes() == cli_png.read_bytes()
     back = cv2.imread(str(saved.raw), cv2.IMREAD_UNCHANGED)
     assert np.array_equal(back, height_frame)          # the raw frame, untouched
     assert "<html" in saved.sheet.read_text().lower()

@@ -13,7 +13,7 @@ _trapezoidal, profile_from_polyline
 thread_silhouette, render_thread, outline_values, helix_pd_error_mm, helix_flank_angle_deg
 render_pin, render_bar, render_gauge_block, render_scale, render_checkerboard, render_tool,
 render_centre, render_tool_height, tool_polygon, cone_polygon, cylinder_silhouette_px
-limb_outline (one limb, parallel view), ray_hits and pinhole_limb_px (pinhole ray casting)
+limb_outline (one limb, parallel view), ray_margin, ray_hits, pinhole_limb_px (ray casting)
 """
 
 from __future__ import annotations
@@ -23,7 +23,7 @@ from ._profiles import (AxialProfile, axial_profile_acme, axial_profile_ba, axia
                         axial_profile_trapezoidal, axial_profile_un, axial_profile_whitworth,
                         profile_from_flanks)
 from ._helix import limb_outline
-from ._raycast import pinhole_limb_px, ray_hits
+from ._raycast import pinhole_limb_px, ray_hits, ray_margin
 from ._render import arc_points, render, shapes_to_px
 from ._scenes import (cone_polygon, cylinder_silhouette_px, render_bar, render_centre,
                       render_checkerboard, render_gauge_block, render_pin, render_scale,
@@ -40,5 +40,5 @@ __all__ = [
     "helix_flank_angle_deg",
     "render_pin", "render_bar", "render_gauge_block", "render_scale", "render_checkerboard",
     "render_tool", "render_centre", "render_tool_height", "tool_polygon", "cone_polygon",
-    "cylinder_silhouette_px", "limb_outline", "ray_hits", "pinhole_limb_px",
+    "cylinder_silhouette_px", "limb_outline", "ray_hits", "ray_margin", "pinhole_limb_px",
 ]

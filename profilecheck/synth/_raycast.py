@@ -2,8 +2,8 @@
 
 A line of sight misses the thread when every point on it lies outside the material,
 r > R(x - a phi) (thread frame of ``_helix``). For one image column the dark run is
-bracketed around the parallel-projection outline and its ends found by bisection on the
-hit test. The hit test samples the margin g(t) = R(x - a phi) - r along the chord of the
+bracketed around the parallel-projection outline and its end found where the ray's
+largest margin max_t [R - r] changes sign (regula falsi with bisection safeguard). The hit test samples the margin g(t) = R(x - a phi) - r along the chord of the
 ray inside the crest cylinder and refines the best sample by golden-section search, so
 grazing contacts (the silhouette itself) are found.
 """
@@ -17,7 +17,7 @@ import numpy as np
 from ._camera import Camera
 from ._profiles import AxialProfile
 
-__all__ = ["ray_hits", "pinhole_limb_px"]
+__all__ = ["ray_margin", "ray_hits", "pinhole_limb_px"]
 
 _GOLD = (math.sqrt(5.0) - 1.0) / 2.0
 
@@ -32,27 +32,32 @@ def _margin(prof, a, o, d, t, x0, axis_y):
     return prof.radius(x - a * phi) - r
 
 
-def ray_hits(prof: AxialProfile, a: float, origin: np.ndarray, direction: np.ndarray, *,
-             x0_mm: float = 0.0, axis_y_mm: float = 0.0, n_samples: int = 96) -> np.ndarray:
-    """True where a ray (world origin (N, 3), unit direction (N, 3)) meets the thread whose
-    axis is the world line y = axis_y_mm, z = 0 (profile coordinate u = x - x0_mm)."""
+def ray_margin(prof: AxialProfile, a: float, origin: np.ndarray, direction: np.ndarray, *,
+               x0_mm: float = 0.0, axis_y_mm: float = 0.0, n_samples: int = 96) -> np.ndarray:
+    """Largest margin max_t [R(x - a phi) - r] along each ray, mm (>= 0: the ray meets the
+    thread). Rays (world origin (N, 3), unit direction (N, 3)); the thread axis is the world
+    line y = ``axis_y_mm``, z = 0 with profile coordinate u = x - ``x0_mm``. Continuous in
+    the ray: a ray passing outside the crest cylinder gets the margin at its closest
+    approach to the axis."""
     o = np.asarray(origin, dtype=float)
     d = np.asarray(direction, dtype=float)
     r_max = float(prof.info["major_d_mm"]) / 2 * (1 + 1e-9)
     dy, dz = d[:, 1], d[:, 2]
     qa = dy * dy + dz * dz
-    hit = np.zeros(len(o), dtype=bool)
+    if np.any(qa <= 0):
+        raise ValueError("direction must not run parallel to the thread axis")
     # restart each ray at its closest approach to the axis (in the y-z projection): the
     # chord through the crest cylinder then follows without cancellation even when the
     # projection centre is far away
-    tc = -((o[:, 1] - axis_y_mm) * dy + o[:, 2] * dz) / np.where(qa > 0, qa, 1.0)
+    tc = -((o[:, 1] - axis_y_mm) * dy + o[:, 2] * dz) / qa
     o = o + tc[:, None] * d
     oy, oz = o[:, 1] - axis_y_mm, o[:, 2]
     qc = oy * oy + oz * oz - r_max * r_max
-    live = (qc < 0) & (qa > 0)
+    out = _margin(prof, a, o, d, np.zeros((len(o), 1)), x0_mm, axis_y_mm)[:, 0]
+    live = qc < 0
     if not np.any(live):
-        return hit
-    half = np.sqrt(np.where(live, -qc / np.where(qa > 0, qa, 1.0), 0.0))
+        return out
+    half = np.sqrt(np.where(live, -qc / qa, 0.0))
     t0, t1 = -half, half
     idx = np.nonzero(live)[0]
     s = np.linspace(0.0, 1.0, n_samples)
@@ -74,14 +79,20 @@ def ray_hits(prof: AxialProfile, a: float, origin: np.ndarray, direction: np.nda
         left = g1 > g2
         hi = np.where(left, m2, hi)
         lo = np.where(left, lo, m1)
-    hit[idx] = gmax >= 0
-    return hit
+    out[idx] = gmax
+    return out
+
+
+def ray_hits(prof: AxialProfile, a: float, origin: np.ndarray, direction: np.ndarray,
+             **kw) -> np.ndarray:
+    """True where a ray meets the thread (:func:`ray_margin` >= 0)."""
+    return ray_margin(prof, a, origin, direction, **kw) >= 0
 
 
 def pinhole_limb_px(camera: Camera, prof: AxialProfile, lead_mm: float, cols_px: np.ndarray,
                     guess_rows_px: np.ndarray, *, limb: str, right_hand: bool = True,
                     x0_mm: float = 0.0, axis_y_mm: float = 0.0, bracket_px: float = 4.0,
-                    iterations: int = 34) -> np.ndarray:
+                    iterations: int = 40) -> np.ndarray:
     """Image rows (float px) of one limb's outline at the image columns ``cols_px``.
 
     ``guess_rows_px``: a first guess per column (the parallel outline); the boundary is
@@ -93,21 +104,39 @@ def pinhole_limb_px(camera: Camera, prof: AxialProfile, lead_mm: float, cols_px:
     lo = np.asarray(guess_rows_px, dtype=float) - bracket_px
     hi = np.asarray(guess_rows_px, dtype=float) + bracket_px
 
-    def dark(rows):
+    def margin(rows):
         o, d = camera.rays(np.column_stack([cols, rows]))
-        return ray_hits(prof, a, o, d, x0_mm=x0_mm, axis_y_mm=axis_y_mm)
+        return ray_margin(prof, a, o, d, x0_mm=x0_mm, axis_y_mm=axis_y_mm)
 
-    # upper limb: bright above (small rows), dark below; lower limb the other way round
     if limb not in ("upper", "lower"):
         raise ValueError(f"limb must be 'upper' or 'lower', got {limb!r}")
-    dl, dh = dark(lo), dark(hi)
-    ok = dl != dh  # one bright-dark change inside the bracket
-    for _ in range(int(iterations)):
+    # the margin is continuous along the column and changes sign once in the bracket:
+    # bisection down to 0.05 px, then regula falsi (Illinois), then the secant root of the
+    # final bracket
+    gl, gh = margin(lo), margin(hi)
+    ok = (gl >= 0) != (gh >= 0)
+    n_bis = max(0, int(math.ceil(math.log2(max(2 * bracket_px, 1e-9) / 0.05))))
+    for _ in range(min(n_bis, int(iterations))):
         mid = 0.5 * (lo + hi)
-        dm = dark(mid)
-        same_as_lo = dm == dl
-        lo = np.where(same_as_lo, mid, lo)
-        hi = np.where(same_as_lo, hi, mid)
-    rows = 0.5 * (lo + hi)
+        gm = margin(mid)
+        same = (gm >= 0) == (gl >= 0)
+        lo, gl = np.where(same, mid, lo), np.where(same, gm, gl)
+        hi, gh = np.where(same, hi, mid), np.where(same, gh, gm)
+    wl, wh = gl.copy(), gh.copy()  # Illinois weights
+    for _ in range(8):
+        with np.errstate(divide="ignore", invalid="ignore"):
+            mid = hi - wh * (hi - lo) / (wh - wl)
+        bad = ~np.isfinite(mid) | (mid <= np.minimum(lo, hi)) | (mid >= np.maximum(lo, hi))
+        mid = np.where(bad, 0.5 * (lo + hi), mid)
+        gm = margin(mid)
+        same = (gm >= 0) == (gl >= 0)
+        lo, gl, wl = np.where(same, mid, lo), np.where(same, gm, gl), np.where(same, gm, wl)
+        hi, gh, wh = np.where(same, hi, mid), np.where(same, gh, gm), np.where(same, wh, gm)
+        # halve the weight of the end that stayed (Illinois), so the secant keeps moving
+        wh = np.where(same, wh * 0.5, wh)
+        wl = np.where(same, wl, wl * 0.5)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rows = lo + (hi - lo) * gl / (gl - gh)
+    rows = np.where(np.isfinite(rows), rows, 0.5 * (lo + hi))
     rows[~ok] = np.nan
     return rows
