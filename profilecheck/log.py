@@ -36,6 +36,7 @@ from datetime import datetime, timezone
 from pathlib import Path
 from typing import Any, Mapping
 
+from ._files import json_safe
 from .errors import LogError
 
 __all__ = ["InspectionLog", "SCHEMA_VERSION", "file_sha256", "BUSY_TIMEOUT_S"]
@@ -90,21 +91,8 @@ def _now() -> str:
     return datetime.now(timezone.utc).isoformat(timespec="seconds")
 
 
-def _clean(o: Any) -> Any:
-    """JSON-safe copy: non-finite floats become null, numpy scalars plain numbers."""
-    if isinstance(o, float):
-        return o if math.isfinite(o) else None
-    if isinstance(o, Mapping):
-        return {str(k): _clean(v) for k, v in o.items()}
-    if isinstance(o, (list, tuple)):
-        return [_clean(v) for v in o]
-    if hasattr(o, "item") and callable(o.item):  # numpy scalar
-        return _clean(o.item())
-    return o
-
-
 def _json(o: Any) -> str:
-    return json.dumps(_clean(o), sort_keys=True, allow_nan=False, default=str)
+    return json.dumps(json_safe(o), sort_keys=True, allow_nan=False, default=str)
 
 
 def _migrate_1_to_2(con: sqlite3.Connection) -> None:

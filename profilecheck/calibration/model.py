@@ -21,11 +21,11 @@ from __future__ import annotations
 import json
 import math
 import os
-import tempfile
 from dataclasses import dataclass, field, asdict, replace
 from pathlib import Path
 from typing import Any
 
+from .. import _files
 from ..errors import CalibrationError
 
 __all__ = ["Calibration", "Lens", "save_calibration", "load_calibration", "FORMAT_VERSION"]
@@ -145,7 +145,7 @@ class Calibration:
         d["format_version"] = FORMAT_VERSION
         if self.lens is not None:
             d["lens"]["dist"] = list(self.lens.dist)
-        return _json_safe(d)
+        return _files.json_safe(d)
 
     @classmethod
     def from_dict(cls, d: dict[str, Any], *, source: str = "calibration") -> "Calibration":
@@ -217,42 +217,10 @@ def _check_nonneg(name: str, v: float) -> None:
         raise CalibrationError(f"calibration: {name} must be a finite number >= 0, got {v!r}")
 
 
-def _json_safe(o: Any) -> Any:
-    """Replace non-finite floats by None so the file is strict JSON."""
-    if isinstance(o, float):
-        return o if math.isfinite(o) else None
-    if isinstance(o, dict):
-        return {k: _json_safe(v) for k, v in o.items()}
-    if isinstance(o, (list, tuple)):
-        return [_json_safe(v) for v in o]
-    return o
-
-
 def atomic_write_text(path: str | os.PathLike[str], text: str) -> None:
-    """Write ``text`` to ``path`` atomically: temp file in the same folder, fsync, rename.
-
-    An existing file is untouched if anything fails before the rename.
-    """
-    p = Path(path)
-    parent = p.parent if str(p.parent) else Path(".")
-    if not parent.is_dir():
-        raise CalibrationError(f"{p}: folder {parent} does not exist")
-    fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=parent)
-    try:
-        umask = os.umask(0)
-        os.umask(umask)
-        os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes 0600; honour the umask like open() would
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
-            fh.write(text)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.replace(tmp, p)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except FileNotFoundError:
-            pass
-        raise
+    """Write ``text`` to ``path`` atomically (see :mod:`profilecheck._files`); a missing
+    folder raises :class:`CalibrationError`."""
+    _files.atomic_write_text(path, text, error=CalibrationError)
 
 
 def save_calibration(cal: Calibration, path: str | os.PathLike[str]) -> None:

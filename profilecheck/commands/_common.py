@@ -9,7 +9,7 @@ import sys
 from pathlib import Path
 from typing import Any, Callable
 
-from ..calibration.model import atomic_write_text
+from .._files import atomic_write_text, json_safe
 from ..errors import ProfilecheckError
 
 __all__ = ["dumps_json", "OutputSet", "exit_code_for", "info"]
@@ -17,19 +17,7 @@ __all__ = ["dumps_json", "OutputSet", "exit_code_for", "info"]
 
 def dumps_json(obj: Any) -> str:
     """Deterministic JSON: sorted keys, 2-space indent, non-finite floats as null."""
-    return json.dumps(_clean(obj), indent=2, sort_keys=True, allow_nan=False) + "\n"
-
-
-def _clean(o: Any) -> Any:
-    if isinstance(o, float):
-        return o if math.isfinite(o) else None
-    if isinstance(o, dict):
-        return {str(k): _clean(v) for k, v in o.items()}
-    if isinstance(o, (list, tuple)):
-        return [_clean(v) for v in o]
-    if hasattr(o, "item") and callable(o.item):  # numpy scalar
-        return _clean(o.item())
-    return o
+    return json.dumps(json_safe(obj), indent=2, sort_keys=True, allow_nan=False) + "\n"
 
 
 class OutputSet:

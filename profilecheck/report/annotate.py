@@ -19,6 +19,7 @@ from typing import Iterable, Sequence
 
 import numpy as np
 
+from .._files import atomic_write_bytes
 from ..errors import ImageError, ProfilecheckError
 from ..overlays import Arc, InfiniteLine, Label, Marker, Polyline, ScaleBar, Segment
 from ._palette import PENS, Pen, pen_for
@@ -184,27 +185,7 @@ def write_annotated_png(path: str | os.PathLike[str], img: np.ndarray,
 
 def write_bytes_atomic(path: str | os.PathLike[str], data: bytes) -> None:
     """Write ``data`` to ``path`` atomically (temp file in the same folder, fsync, rename)."""
-    import secrets
-
-    p = Path(path)
-    parent = p.parent if str(p.parent) else Path(".")
-    if not parent.is_dir():
-        raise ProfilecheckError(f"{p}: folder {parent} does not exist")
-    tmp = str(parent / f".{p.name}.{secrets.token_hex(6)}.tmp")
-    # O_EXCL on a random name; mode 0o666 so the umask applies as for any new file
-    fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666)
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.replace(tmp, p)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except FileNotFoundError:
-            pass
-        raise
+    atomic_write_bytes(path, data)
 
 
 def label_text(text: str, style: str) -> str:
