@@ -177,6 +177,84 @@ def accuracy_table(quick: bool):
     print()
 
 
+def line_table(quick: bool):
+    """Line fits through the edge points of a straight edge: offset and angle scatter over
+    repeated noisy images beside the bound for L points, sigma_1 / sqrt(L) and
+    sigma_1 / sqrt(sum (t - mean t)^2) rad for points at positions t along the line (for unit
+    spacing sigma_1 sqrt(12 / (L (L^2 - 1))), vision-notes section 2), sigma_1 = per-point
+    CRLB; 'reported' is the fit's own standard uncertainty."""
+    rng = np.random.default_rng(7)
+    reps = 30 if not quick else 10
+    print("Line fits (weighted TLS on find_edges points), 100 px of edge, sigma_n = 2:")
+    print(f"{'angle':>6} {'sb':>4} | {'offset std':>10} {'bound':>7} {'reported':>8} | "
+          f"{'angle std deg':>13} {'bound':>8} {'reported':>8}")
+    for ang in (0.0, 3.0, 45.0):
+        for sb in (1.0, 2.0):
+            shape = (130, 130)
+            point = np.array([65.31, 65.17])
+            clean, n = render(shape, point, ang, sb)
+            offs, angs, so, sa = [], [], [], []
+            for _ in range(reps):
+                e = find_edges(np.clip((clean + rng.normal(0, 2.0, shape)) / 255, 0, 1))
+                t = (e.xy - point) @ np.array([-n[1], n[0]])
+                sel = np.abs(t) < 50
+                f = fit_line(e.xy[sel], sigma_px=e.std_px[sel])
+                offs.append((f.point - point) @ n)
+                angs.append(math.atan2(f.direction[1], f.direction[0]) % math.pi)
+                so.append(f.std_offset_px)
+                sa.append(f.std_angle_rad)
+            s1, _ = crlb_px(sb, 2.0, ang)
+            L = int(sel.sum())
+            tt = t[sel]
+            ang_bound = s1 / math.sqrt(float(((tt - tt.mean()) ** 2).sum()))
+            print(f"{ang:6.1f} {sb:4.1f} | {np.std(offs):10.5f} {s1 / math.sqrt(L):7.5f} "
+                  f"{np.median(so):8.5f} | {math.degrees(np.std(angs)):13.5f} "
+                  f"{math.degrees(ang_bound):8.5f} {math.degrees(np.median(sa)):8.5f}")
+    print()
+
+
+def disk_table(quick: bool):
+    """Blurred disks (exact: non-central chi-square), radius fitted to find_edges points,
+    raw and corrected for the sigma_e^2 / (2R) shift of curved edges (vision-notes 1.2)."""
+    from scipy.stats import ncx2
+
+    from profilecheck.imaging import correct_radius_for_blur
+    print("Disks, noise-free, radius error (px): raw fit, expected -sigma_e^2/(2R), corrected")
+    xg, wg = np.polynomial.legendre.leggauss(3)
+    cases = [(10.0, 1.0), (20.0, 1.0), (40.0, 1.0), (20.0, 2.0)] if not quick else [(20.0, 1.0)]
+    for R, sb in cases:
+        size = int(2 * R + 12 * sb + 20)
+        c = np.array([size / 2 + 0.31, size / 2 - 0.27])
+        yy, xx = np.mgrid[0:size, 0:size].astype(float)
+        inside = np.zeros((size, size))
+        for u, wu in zip(xg / 2, wg / 2):
+            for v, wv in zip(xg / 2, wg / 2):
+                rho2 = (xx + u - c[0]) ** 2 + (yy + v - c[1]) ** 2
+                inside += wu * wv * ncx2.cdf(R ** 2 / sb ** 2, 2, rho2 / sb ** 2)
+        img = (DARK + CONTRAST * (1 - inside)) / 255
+        e = find_edges(img)
+        f = fit_circle(e.xy)
+        rc = correct_radius_for_blur(f.radius, e.blur_px)
+        print(f"  R {R:5.1f} sb {sb:3.1f}: raw {f.radius - R:+.4f}  expected "
+              f"{-(sb ** 2 + 1 / 12) / (2 * R):+.4f}  corrected {rc - R:+.4f}  ({len(e)} points)")
+    print()
+
+
+def gamma_table(quick: bool):
+    """estimate_gamma on an encoded straight edge, 200 x 150 px, sigma_n = 2 (linear), 8-bit."""
+    from profilecheck.imaging import estimate_gamma
+    rng = np.random.default_rng(3)
+    print("Camera gamma from edge shape (estimate_gamma), sigma_b = 1.5:")
+    for g in ((1.0, 2.2) if quick else (1.0, 1.8, 2.2, 2.6)):
+        lin, _ = render((200, 150), np.array([75.3, 100.6]), 20.0, 1.5)
+        lin = np.clip(lin + rng.normal(0, 2.0, lin.shape), 0.3, 255) / 255
+        code = np.round(lin ** (1 / g) * 255) / 255
+        est = estimate_gamma(code)
+        print(f"  true {g:.2f}: estimated {est.gamma:.3f} +/- {est.std:.3f} (k = 1, "
+              f"{est.n_profiles} profiles)")
+    print()
+
+
 def _thread_image(path, size=(1600, 1250), pitch_px=100.0, sigma_b=1.2, seed=0):
     """A 60 deg thread-like silhouette across a 2 MP frame, rendered by supersampling."""
     w, h = size
@@ -234,6 +312,9 @@ def main(argv=None):
     argv = sys.argv[1:] if argv is None else argv
     quick = "--quick" in argv
     accuracy_table(quick)
+    line_table(quick)
+    disk_table(quick)
+    gamma_table(quick)
     timing()
     return 0
 

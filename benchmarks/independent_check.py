@@ -97,12 +97,13 @@ def bench_pin():
 def bench_lines():
     print("\n== stage micrometer (scale 0.05 %; edge offset truth 0 px, tol 0.02 px)")
     s, size = 0.005, (480, 360)
-    for width_px in (2, 3, 4, 6, 10):
+    for width_px, blur in ((2, 1.0), (3, 1.0), (4, 1.0), (6, 1.0), (6, 1.2), (8, 0.8), (8, 1.2),
+                           (8, 1.6), (10, 1.2)):
         lw = width_px * s
-        case = f"5 um/px, 0.1 mm spacing, line {width_px} px"
+        case = f"5 um/px, 0.1 mm spacing, line {width_px} px, blur {blur} px"
         print(f"- {case}")
         polys = R.micrometer_polygons(0.1, lw, int(0.9 * size[0] * s / 0.1), angle_deg=1.0)
-        img = R.render(polys, R.View(s, size), blur_px=1.0, vignetting=0.15, seed=2)
+        img = R.render(polys, R.View(s, size), blur_px=blur, vignetting=0.15, seed=2)
         try:
             cal = pc.calibrate_from_lines(R.as_float(img), 0.1, line_width_mm=lw)
         except pc.ProfilecheckError as e:
@@ -113,11 +114,20 @@ def bench_lines():
 
 
 # ------------------------------------------------------------------ threads
+def lines_cal(s, size):
+    """Bias-free scale and edge offset from a ruled scale (0.1 mm spacing, 12 px lines)."""
+    lw = 12 * s
+    polys = R.micrometer_polygons(0.1, lw, int(0.9 * size[0] * s / 0.1), angle_deg=1.0)
+    img = R.render(polys, R.View(s, size), blur_px=1.2, vignetting=0.15, seed=2)
+    return pc.calibrate_from_lines(R.as_float(img), 0.1, line_width_mm=lw)
+
+
 def thread_case(group, case, P, d, spec, *, s, size, both, centre, rot=0.4, gamma=1.0,
-                jpeg=None, helical=True, root="flat", keys=None, tols=None, lead=None):
+                jpeg=None, helical=True, root="flat", keys=None, tols=None, lead=None,
+                cal_kind="pin"):
     print(f"- {case}")
     t0 = time.time()
-    cal = pin_cal(s, size, gamma=gamma)
+    cal = pin_cal(s, size, gamma=gamma) if cal_kind == "pin" else lines_cal(s, size)
     span = size[0] * s / 2 + 2 * P
     polys = R.thread_polygons(P, d, x0_mm=-span, x1_mm=span, helical=helical, both=both,
                               root=root, step_mm=min(P / 1000, s / 4), lead_mm=lead)
@@ -158,6 +168,8 @@ def bench_thread_fine(quick):
     print("\n== thread, one edge, 3.75 um/px (pitch 0.5 um, flanks 0.1 deg, flats/depth 2 um)")
     s, size = 0.00375, (640, 240)
     cases = [("M3x0.5 helical", 0.5, 3.0, "M3x0.5-6g", {}),
+             ("M3x0.5 helical, ruled-scale calibration (12 px lines)", 0.5, 3.0, "M3x0.5-6g",
+              {"cal_kind": "lines"}),
              ("M3x0.5 helical, gamma 2.2", 0.5, 3.0, "M3x0.5-6g", {"gamma": 2.2}),
              ("M3x0.5 helical, JPEG 90", 0.5, 3.0, "M3x0.5-6g", {"jpeg": 90}),
              ("M3x0.5 helical, no spec", 0.5, 3.0, None, {}),

@@ -69,7 +69,12 @@ def run(frames, backend, seconds: float, workers: int = 1, track: bool = True) -
     times, late, errs = [], [], []
     truth = {id(f): t for f, t in zip(frames, tip_heights_mm(len(frames)))}
 
+    warm = None
+
     def got(out):
+        nonlocal warm
+        if warm is None:  # rates count from the first measured frame (start-up excluded)
+            warm = (time.perf_counter(), 1, win.live.frames_shown)  # this one excluded
         times.append(out.elapsed_s)
         m = out.result.measurements.get("height_offset") if hasattr(out.result, "measurements") else None
         t = truth.get(id(win.model.outcome_frame))
@@ -87,13 +92,10 @@ def run(frames, backend, seconds: float, workers: int = 1, track: bool = True) -
     timer.timeout.connect(tick)
     timer.start(10)
     win.start_camera()
-    t0 = time.perf_counter()
-    warm = None
-    while time.perf_counter() - t0 < seconds:
-        app.processEvents()
-        if warm is None and times:
-            warm = (time.perf_counter(), len(times), win.live.frames_shown)  # after the first
-        time.sleep(0.002)
+    from PyQt5.QtCore import QEventLoop
+    loop = QEventLoop()
+    QTimer.singleShot(int(seconds * 1000), loop.quit)
+    loop.exec_()  # the real event loop: it sleeps in Qt between events, as the viewer does
     t1 = time.perf_counter()
     timer.stop()
     pipe = win.live.pipeline

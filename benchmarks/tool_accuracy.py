@@ -1,6 +1,6 @@
 """Accuracy of measure_tool against exact outlines, at about 8 um/px.
 
-Renders threading tools of known geometry (``profilecheck.scenario._shapes.tool_top_view``)
+Renders threading tools (60, 55 and 29 deg) of known geometry (``profilecheck.scenario._shapes.tool_top_view``)
 through ``profilecheck.synth.render`` with varied camera rotation (up to 5 deg), point
 direction, blur, noise, asymmetry and tip form (flat or nose radius), then prints each error
 and, per quantity, the largest error over the target and the share of cases where the error
@@ -39,6 +39,11 @@ def case(i: int, rng: np.random.Generator):
         hl, hr = hl - 2.5, hr - 2.5
     tip = ({"tip_flat_mm": float(rng.uniform(0.03, 0.25))} if i % 2 == 0
            else {"tip_radius_mm": float(rng.uniform(0.03, 0.15))})
+    if i % 5 == 4:  # a 29 deg (Acme) tool with its wide flat
+        hl, hr = hl - 15.5, hr - 15.5
+        tip = {"tip_flat_mm": float(rng.uniform(0.05, 0.3))}
+    if i % 11 == 10:  # a sharp point
+        tip = {"tip_flat_mm": 0.0}
     blur = float(rng.uniform(1.0, 2.0))
     noise = float(rng.uniform(1.0, 4.0))
     d = math.radians(direction)

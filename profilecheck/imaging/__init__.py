@@ -8,7 +8,7 @@ this package are standard (k = 1, names ``std_*``, ``cov``); measure modules exp
 Typical use::
 
     img = load_image("part.png")
-    edges = find_edges(img, gamma=1.0)
+    edges = find_edges(img, gamma=1.0)      # or gamma=estimate_gamma(img).gamma to check it
     flank = fit_line(edges.in_box(100, 50, 300, 200).xy, sigma_px=...)
     tip, cov = intersect_lines(flank_a, flank_b)
 

@@ -24,6 +24,8 @@ __all__ = ["LineFit", "CircleFit", "Regression", "fit_line", "fit_circle", "regr
 _MAD_TO_SIGMA = 1.4826  # 1 / Phi^-1(3/4): MAD -> standard deviation for Gaussian data
 _TRIM_K = 3.0
 _MAX_TRIM_ROUNDS = 10
+# trimming never rejects a point closer than 3 x this to the fit (exact, rendered data)
+_SCALE_FLOOR_PX = 1e-6
 
 
 def _check_points(xy, name: str = "xy", min_n: int = 2) -> np.ndarray:
@@ -190,7 +192,7 @@ def fit_line(xy, *, weights=None, sigma_px=None, robust: bool = True) -> LineFit
         rk = r[keep]
         med = np.median(rk)
         scale = _MAD_TO_SIGMA * np.median(np.abs(rk - med))
-        floor = 1e-9
+        floor = _SCALE_FLOOR_PX
         if absolute:
             floor = max(floor, float(np.median(1.0 / np.sqrt(w_all[keep]))))
         new_keep = (w_all > 0) & (np.abs(r - med) <= _TRIM_K * max(scale, floor))
@@ -356,7 +358,7 @@ def fit_circle(xy, *, weights=None, sigma_px=None, robust: bool = True) -> Circl
         rk = r_all[keep]
         med = np.median(rk)
         scale = _MAD_TO_SIGMA * np.median(np.abs(rk - med))
-        floor = 1e-9
+        floor = _SCALE_FLOOR_PX
         if absolute:
             floor = max(floor, float(np.median(1.0 / np.sqrt(w_all[keep]))))
         new_keep = (w_all > 0) & (np.abs(r_all - med) <= _TRIM_K * max(scale, floor))

@@ -267,10 +267,12 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         # Window: from the middle of the flat before to the middle of the flat after.
         xa = 0.5 * (cx[k - 1] + xc) if k > 0 else xc - 0.25 * p_est
         xb = 0.5 * (cx[k + 1] + xc) if k + 1 < len(cx) else xc + 0.25 * p_est
-        sel = (x > xa) & (x < xb) & (y > band_lo) & (y < band_hi)
+        i0, i1 = np.searchsorted(x, [xa, xb])  # x is sorted: slice the window first
+        wx, wy = x[i0:i1], y[i0:i1]
+        sel = (wy > band_lo) & (wy < band_hi)
         if sel.sum() < 5:
             continue
-        px, py = x[sel], y[sel]
+        px, py = wx[sel], wy[sel]
         if float(py.max() - py.min()) < 0.6 * (band_hi - band_lo):
             continue  # flank cut by the end of the edge or by damage: not a whole flank
         if flank_shift is not None:
@@ -457,6 +459,11 @@ def _fit_flats(x, y, flanks, levels, cross, sigma_e, m_crest, m_root, radiused_c
 def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused, arc_shift=None):
     """Flat between flank lines ``fa`` (at smaller x) and ``fb``; crest is above, root below."""
     sgn = 1.0 if kind == "crest" else -1.0
+    # The flat lies between the two flanks' mid-height points; x is sorted, so slice.
+    i0, i1 = np.searchsorted(x, sorted((fa.line.x_ref, fb.line.x_ref)))
+    x, y = x[i0:i1], y[i0:i1]
+    if len(x) < 2:
+        return None
     xa, xb = float(fa.line.x_at(level0)), float(fb.line.x_at(level0))
     # Local level: a chipped crest or a deeper root sits away from the common level.
     around = (x > min(xa, xb)) & (x < max(xa, xb))

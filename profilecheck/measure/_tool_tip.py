@@ -141,17 +141,13 @@ def fit_tip(xy: np.ndarray, left, right, apex: np.ndarray, bisector: np.ndarray,
     """
     xy = np.asarray(xy, float)
     beta = 0.5 * (math.pi - math.acos(float(np.clip(left.normal @ right.normal, -1, 1))))
-    margin = max(1.5 * sigma_e_px, 1.0)
+    margin = max(2.5 * sigma_e_px, 1.5)  # clear of the corners' rounding (about 2 sigma)
     dl, dr = -left.distance(xy), -right.distance(xy)  # + inside the tool
     central = (dl > margin) & (dr > margin)
     pts = xy[central]
     n = len(pts)
     if n < MIN_TIP_POINTS:
-        if pix is None:
-            from ..errors import QualityError
-
-            raise QualityError("the tool's tip is too small to size from its edge points")
-        return _small_tip(pix, apex, bisector, beta, sigma_e_px, n)
+        return _small_or_refuse(xy, pix, apex, bisector, beta, sigma_e_px, n)
     from ..imaging import fit_circle, fit_line
 
     lf = fit_line(pts, robust=True)
@@ -167,6 +163,8 @@ def fit_tip(xy: np.ndarray, left, right, apex: np.ndarray, bisector: np.ndarray,
     if (cf is not None and inside and sag > MIN_SAGITTA_PX
             and rms_line > ROUND_RATIO * rms_circle + 0.02):
         r, std, centre = _tangent_radius(pts, apex, bisector, beta, sigma_e_px, float(cf.radius))
+        if not (math.isfinite(std) and math.isfinite(r)):
+            return _small_or_refuse(xy, pix, apex, bisector, beta, sigma_e_px, n)
         return TipForm("radius", r, std, n, rms_line, rms_circle, centre=centre,
                        note="nose radius tangent to both flanks, corrected for blur (+sigma^2/2R)")
     # flat: intersect the flat's line with both flanks
@@ -185,8 +183,20 @@ def fit_tip(xy: np.ndarray, left, right, apex: np.ndarray, bisector: np.ndarray,
     std = math.sqrt((2 * math.tan(beta) * lf.std_offset_px) ** 2
                     + (w * lf.std_angle_rad * math.tan(beta)) ** 2
                     + 2 * left.std_offset_px ** 2 / math.cos(beta) ** 2)
+    if not (math.isfinite(std) and math.isfinite(w)):
+        # too few inliers left after trimming for a covariance: size it from the pixels
+        return _small_or_refuse(xy, pix, apex, bisector, beta, sigma_e_px, n)
     return TipForm("flat", w, std, n, rms_line, rms_circle,
                    ends=((float(pl[0]), float(pl[1])), (float(pr[0]), float(pr[1]))))
+
+
+def _small_or_refuse(xy, pix, apex, bisector, beta, sigma_e_px, n) -> TipForm:
+    if pix is None:
+        from ..errors import QualityError
+
+        raise QualityError("the tool's tip is too small to size from its edge points")
+    depth0 = float(np.min(-(xy - apex) @ bisector)) if len(xy) else 0.0
+    return _small_tip(pix, apex, bisector, beta, sigma_e_px, n, max(depth0, 0.0))
 
 
 def _tangent_radius(pts, apex, bisector, beta, sigma_e, r_start):
@@ -260,7 +270,7 @@ def _coverage(lat: np.ndarray, depth: np.ndarray, half_angle_rad: float, flat_de
     return (frac * w).sum(axis=0) * dt
 
 
-def _small_tip(pix, apex, bisector, beta, sigma_e, n_central) -> TipForm:
+def _small_tip(pix, apex, bisector, beta, sigma_e, n_central, depth0=0.0) -> TipForm:
     """Fit the flat of a blurred truncated wedge to the pixels round a small tip.
 
     Edge points thin out at a sharp or nearly sharp point (the step model of the edge finder
@@ -270,7 +280,9 @@ def _small_tip(pix, apex, bisector, beta, sigma_e, n_central) -> TipForm:
     minimises the sum of squared grey-level residuals. The model holds the corner recession
     of vision-notes section 1.2 by construction.
 
-    ``pix`` is ``(img_lin, dark, bright)``: the linearised image and the local levels.
+    ``pix`` is ``(img_lin, dark, bright)``: the linearised image and the local levels;
+    ``depth0`` the depth (px behind the apex) of the nearest edge point, which sets how far
+    back the window of pixels reaches.
     """
     from scipy.optimize import minimize_scalar
 
@@ -281,7 +293,7 @@ def _small_tip(pix, apex, bisector, beta, sigma_e, n_central) -> TipForm:
         raise QualityError("the tool's point is not clear in the image: too little contrast "
                            "at the tip")
     tb = math.tan(beta)
-    reach = 6 * sigma_e + 4.0
+    reach = depth0 + 6 * sigma_e + 4.0
     h, w = img.shape
     x0, x1 = int(max(apex[0] - 2 * reach, 0)), int(min(apex[0] + 2 * reach, w - 1))
     y0, y1 = int(max(apex[1] - 2 * reach, 0)), int(min(apex[1] + 2 * reach, h - 1))
@@ -324,7 +336,10 @@ def _small_tip(pix, apex, bisector, beta, sigma_e, n_central) -> TipForm:
     else:
         kind, size = "small", 2 * tb * fd
         m0 = model(fd)
-        J = (model(fd + 1e-3) - m0) / 1e-3 / (2 * tb)  # per px of flat width
+        # secant over half a pixel of flat width: near a sharp point the pixels respond to
+        # the flat only to second order, so a tangent would overstate the uncertainty
+        step = 0.5 / (2 * tb)
+        J = (model(fd + step) - m0) / step / (2 * tb)  # per px of flat width
         cost = cost_flat
     s_i = math.sqrt(cost / max(n - 1, 1))
     info = float(np.sum(J ** 2))
