@@ -184,7 +184,7 @@ def line_table(quick: bool):
     spacing sigma_1 sqrt(12 / (L (L^2 - 1))), vision-notes section 2), sigma_1 = per-point
     CRLB; 'reported' is the fit's own standard uncertainty."""
     rng = np.random.default_rng(7)
-    reps = 30 if not quick else 10
+    reps = 60 if not quick else 10
     print("Line fits (weighted TLS on find_edges points), 100 px of edge, sigma_n = 2:")
     print(f"{'angle':>6} {'sb':>4} | {'offset std':>10} {'bound':>7} {'reported':>8} | "
           f"{'angle std deg':>13} {'bound':>8} {'reported':>8}")

@@ -174,6 +174,8 @@ def bench_thread_fine(quick):
              ("M3x0.5 helical, JPEG 90", 0.5, 3.0, "M3x0.5-6g", {"jpeg": 90}),
              ("M3x0.5 helical, no spec", 0.5, 3.0, None, {}),
              ("M3x0.5 helical, H/6 root radius", 0.5, 3.0, "M3x0.5-6g", {"root": "radius"}),
+             # info only: a square view of a real thread never shows the axial section; the
+             # project corrects for the helix it assumes, so this measures that correction
              ("M3x0.5 AXIAL SECTION (no helix in the image)", 0.5, 3.0, "M3x0.5-6g",
               {"helical": False})]
     if not quick:
@@ -181,7 +183,8 @@ def bench_thread_fine(quick):
                   ("8-32 UNC-2A helical", IN / 32, 0.164 * IN, "8-32 UNC-2A", {})]
     for name, P, d, spec, kw in cases:
         keys = ["pitch", "flank_left", "flank_right", "crest_flat", "root_flat", "depth"]
-        thread_case("thread fine", name, P, d, spec, s=s, size=size, both=False,
+        group = "thread fine (info)" if "AXIAL" in name else "thread fine"
+        thread_case(group, name, P, d, spec, s=s, size=size, both=False,
                     centre=(0.03, d / 2 - 0.3 * P), keys=keys, tols=FINE, **kw)
 
 
@@ -196,12 +199,41 @@ def bench_thread_coarse(quick):
     if not quick:
         cases += [("1/4-20 UNC-2A", IN / 20, 0.25 * IN, "1/4-20 UNC-2A", (520, 760), {}),
                   ("M8x1.25-6g", 1.25, 8.0, "M8x1.25-6g", (480, 940), {}),
-                  ("M6x1-6g, H/6 root radius", 1.0, 6.0, "M6x1-6g", (440, 720), {"root": "radius"})]
+                  ("M6x1-6g, H/6 root radius", 1.0, 6.0, "M6x1-6g", (440, 720), {"root": "radius"}),
+                  ("M6x1-6g, axis tilted 3 deg in the image", 1.0, 6.0, "M6x1-6g", (440, 720),
+                   {"rot": 3.0}),
+                  ("M6xPh2P1-6g two-start (lead 2)", 1.0, 6.0, "M6xPh2P1-6g", (440, 720),
+                   {"lead": 2.0})]
     for name, P, d, spec, size, kw in cases:
         keys = ["pitch", "flank_left", "flank_right", "major_diameter", "pitch_diameter",
                 "minor_diameter"]
+        kw = {"rot": 0.6, **kw}
         thread_case("thread coarse", name, P, d, spec, s=s, size=size, both=True,
-                    centre=(0.02, 0.01), rot=0.6, keys=keys, tols=COARSE, **kw)
+                    centre=(0.02, 0.01), keys=keys, tols=COARSE, **kw)
+
+
+def bench_spec_mismatch(quick):
+    print("\n== wrong spec for the part (expect a pitch check row or a warning)")
+    s, size = 0.010, (440, 720)
+    cal = pin_cal(s, size)
+    polys = R.thread_polygons(1.0, 6.0, x0_mm=-3.0, x1_mm=3.0, step_mm=2.5e-3)
+    img = R.render(polys, R.View(s, size, rotation_deg=0.6, centre_mm=(0.02, 0.01)),
+                   blur_px=1.2, vignetting=0.15, seed=5)
+    for spec in ("M6x0.75-6g", "1/4-20 UNC-2A", "M6x1-6H"):
+        name = f"M6x1 external image measured against {spec}"
+        print(f"- {name}")
+        try:
+            res = pc.measure_thread(R.as_float(img), cal, spec=spec)
+        except pc.ProfilecheckError as e:
+            print(f"  refused: {e}  PASS")
+            ROWS.append(("spec mismatch", name, "flagged", True))
+            continue
+        names = [c.name for c in res.checks]
+        flagged = ("pitch" in names or any("pitch" in w or "internal" in w or "external" in w
+                                           for w in res.warnings))
+        print(f"  verdict {res.verdict}; checks {names}; warnings {list(res.warnings)}  "
+              f"{'PASS' if flagged else 'MISS (nothing says the spec does not fit the part)'}")
+        ROWS.append(("spec mismatch", name, "flagged", flagged))
 
 
 # ------------------------------------------------------------------ tools
@@ -337,7 +369,8 @@ def main(argv=None):
             f()
         except Exception:  # keep going: this script reports, it does not stop
             traceback.print_exc()
-    for f in (bench_thread_fine, bench_thread_coarse, bench_tool, bench_height):
+    for f in (bench_thread_fine, bench_thread_coarse, bench_spec_mismatch, bench_tool,
+              bench_height):
         try:
             f(quick)
         except Exception:

@@ -39,17 +39,19 @@ def case(i: int, rng: np.random.Generator):
         hl, hr = hl - 2.5, hr - 2.5
     tip = ({"tip_flat_mm": float(rng.uniform(0.03, 0.25))} if i % 2 == 0
            else {"tip_radius_mm": float(rng.uniform(0.03, 0.15))})
-    if i % 5 == 4:  # a 29 deg (Acme) tool with its wide flat
+    shank, back = 3.0, 1.4
+    if i % 5 == 4:  # a 29 deg (Acme) tool with its wide flat, on a narrower shank
         hl, hr = hl - 15.5, hr - 15.5
         tip = {"tip_flat_mm": float(rng.uniform(0.05, 0.3))}
+        shank, back = 1.5, 2.2
     if i % 11 == 10:  # a sharp point
         tip = {"tip_flat_mm": 0.0}
     blur = float(rng.uniform(1.0, 2.0))
     noise = float(rng.uniform(1.0, 4.0))
     d = math.radians(direction)
-    poly, truth = tool_top_view(half_left_deg=hl, half_right_deg=hr, shank_width_mm=3.0,
+    poly, truth = tool_top_view(half_left_deg=hl, half_right_deg=hr, shank_width_mm=shank,
                                 direction_deg=direction, **tip)
-    cam = Camera(S, SIZE, rotation_deg=rot, centre_mm=(-1.4 * math.cos(d), -1.4 * math.sin(d)))
+    cam = Camera(S, SIZE, rotation_deg=rot, centre_mm=(-back * math.cos(d), -back * math.sin(d)))
     img, _ = render([poly], cam, blur_px=blur, noise=noise, dark=28, bright=225, seed=i)
     return img, truth, dict(rot=rot, dir=direction, blur=blur, noise=noise, **tip)
 
@@ -62,7 +64,7 @@ def main(n: int = 24) -> int:
     wrong_kind = refused = 0
     t_all = []
     print(f"{'case':>4} {'rot':>5} {'blur':>4} {'noise':>5} {'tip':>18}  "
-          f"{'d_incl':>7} {'d_hl':>7} {'d_hr':>7} {'d_tip um':>8}  kind")
+          f"{'d_incl':>7} {'d_hl':>7} {'d_hr':>7} {'d_tip um':>8}  kind, reference")
     for i in range(n):
         img, truth, info = case(i, rng)
         t0 = time.perf_counter()
@@ -74,6 +76,10 @@ def main(n: int = 24) -> int:
             continue
         t_all.append(time.perf_counter() - t0)
         row = {}
+        if r.reference == "bisector":  # no shank in view: half-angles are from the bisector
+            truth = dict(truth, half_left=truth["included_angle"] / 2,
+                         half_right=truth["included_angle"] / 2)
+            truth.pop("bisector_tilt")
         for k in TARGETS:
             if k in truth and k in r.measurements:
                 e = r.measurements[k].value - truth[k]
@@ -87,7 +93,7 @@ def main(n: int = 24) -> int:
         d_tip = row.get(tk, float("nan")) * 1000
         print(f"{i:>4} {info['rot']:5.1f} {info['blur']:4.2f} {info['noise']:5.2f} {tip_txt:>18}  "
               f"{row.get('included_angle', float('nan')):+7.4f} {row.get('half_left', float('nan')):+7.4f} "
-              f"{row.get('half_right', float('nan')):+7.4f} {d_tip:+8.2f}  {r.tip_kind}")
+              f"{row.get('half_right', float('nan')):+7.4f} {d_tip:+8.2f}  {r.tip_kind}, {r.reference}")
     print()
     print(f"{'quantity':<16} {'n':>3} {'max |err|':>10} {'target':>8} {'ratio':>6} {'rms':>9} {'within U':>9}")
     worst = 0.0

@@ -3,7 +3,8 @@
 ::
 
     profilecheck thread IMAGE --cal FILE [--spec DESIGNATION] [--json FILE]
-                        [--annotate PNG] [--units mm|in]
+                        [--annotate PNG] [--sheet FILE] [--csv FILE] [--log FILE]
+                        [--job NAME] [--units mm|in]
 
 Prints a table (pitch, flank angles, flats, depth; diameters and a virtual three-wire
 reading when both edges are in view) beside the spec's limits. Exit 0 measured (and within
@@ -38,10 +39,9 @@ def register(subparsers) -> None:
     p.add_argument("--cal", required=True, metavar="FILE", help="calibration file (JSON)")
     p.add_argument("--spec", metavar="DESIGNATION",
                    help="thread designation, e.g. M6x1-6g, 1/4-20 UNC-2A, '3/16-40 ME'")
-    p.add_argument("--json", metavar="FILE", help="write the result as JSON")
-    p.add_argument("--annotate", metavar="PNG", help="write the picture with the fits drawn on it")
-    p.add_argument("--units", choices=("mm", "in"), default="mm",
-                   help="units of the terminal table (default mm)")
+    from ..report.outputs import add_output_arguments
+
+    add_output_arguments(p)
     p.set_defaults(func=run)
 
 
@@ -49,10 +49,10 @@ def run(args) -> int:
     from ..calibration import load_calibration
     from ..imaging import load_image
     from ..measure import measure_thread
-    from ._common import OutputSet, dumps_json, exit_code_for, info
+    from ..report.outputs import add_standard_outputs, prepare_outputs
+    from ._common import exit_code_for, info
 
-    json_path = OutputSet.check_path(args.json, "--json")
-    png_path = OutputSet.check_path(args.annotate, "--annotate")
+    outputs = prepare_outputs(args)  # every output path checked before any work
     cal = load_calibration(args.cal)
     spec = None
     if args.spec:
@@ -63,18 +63,7 @@ def run(args) -> int:
     d = result.to_dict()
     d["image"] = args.image
     d["calibration"] = dict(d["calibration"], file=args.cal)
-
-    outputs = OutputSet()
-    outputs.add_text(json_path, dumps_json(d))
-    if png_path is not None:
-        from ..report.annotate import draw_overlays, encode_png
-
-        data = encode_png(draw_overlays(img, result.overlays))
-
-        def _write(p, data=data):
-            p.write_bytes(data)
-
-        outputs.add_writer(png_path, _write)
+    add_standard_outputs(outputs, args, d, img, overlays=result.overlays)
     text = _table(d, args.units)
     outputs.commit()
     print(text, end="")

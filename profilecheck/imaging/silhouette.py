@@ -12,7 +12,9 @@ then moves every edge in the dim corners. Instead:
 3. the dark level from the interior of the dark part (median);
 4. the flattened image f = (img - dark) / (background - dark), which is ~0 in the part and
    ~1 in the field everywhere; the silhouette is f < 0.5 (the 50 % level of an incoherent
-   backlit edge, vision-notes section 4), checked against Otsu's threshold of f.
+   backlit edge, vision-notes section 4). Otsu's threshold of f is reported but not used:
+   with blurred edges it wanders with the ratio of dark to bright area (10-50 % measured on
+   clean renders), so it is no test of the lighting.
 
 Only seeding and masks depend on this; edge positions come from local model fits with free
 levels (:mod:`profilecheck.imaging.edges`).
@@ -105,7 +107,7 @@ class Silhouette:
     contrast : float
         Median of (background - dark_level) over the image.
     otsu_level : float
-        Otsu's threshold of ``flat`` (close to 0.5 for a clean silhouette).
+        Otsu's threshold of ``flat`` (information only: it depends on the area ratio).
     vignetting : float
         1 - min(background) / max(background) over the image.
     """

@@ -185,19 +185,23 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
         half_deg = spec.flank_half_angle_deg if spec is not None else math.degrees(theta)
         wire = (spec.best_wire_mm if spec is not None and math.isfinite(spec.best_wire_mm)
                 else best_wire(p, half_deg))
-        m_planar, s_m, n_w, ok = virtual_over_wire(t, bm, wire)
-        lead = helix.get("lead_mm", p)
-        psi = math.atan(lead / (math.pi * pd))
-        m_real = m_planar + lead_term_mm(wire, math.radians(half_deg), psi)
-        meas["over_wire"] = _m(m_real, math.sqrt(s_m ** 2 + (g_pd * sb) ** 2 + (m_real * rel) ** 2
-                                                 + (_MODEL * corr) ** 2 + floor ** 2
-                                                 + absorbed(m_real, g_pd) ** 2), "mm", n_w,
-                               note=f"virtual reading over {wire:.4f} mm wires, lead-angle term "
-                                    "of ASME B1.2 / H28 (exact form) included")
-        if not ok:
-            notes.append("a virtual wire touches outside the straight flanks: compare the "
-                         "over-wire reading with care")
-        helix["over_wire_wire_mm"] = wire
+        try:
+            m_planar, s_m, n_w, ok = virtual_over_wire(t, bm, wire)
+        except ValueError:  # no groove with both flanks fitted on one edge
+            notes.append("no virtual wire reading: an edge has no groove with both flanks")
+        else:
+            lead = helix.get("lead_mm", p)
+            psi = math.atan(lead / (math.pi * pd))
+            m_real = m_planar + lead_term_mm(wire, math.radians(half_deg), psi)
+            meas["over_wire"] = _m(m_real, math.sqrt(
+                s_m ** 2 + (g_pd * sb) ** 2 + (m_real * rel) ** 2 + (_MODEL * corr) ** 2
+                + floor ** 2 + absorbed(m_real, g_pd) ** 2), "mm", n_w,
+                note=f"virtual reading over {wire:.4f} mm wires, lead-angle term of ASME B1.2 / "
+                     "H28 (exact form) included")
+            if not ok:
+                notes.append("a virtual wire touches outside the straight flanks: compare the "
+                             "over-wire reading with care")
+            helix["over_wire_wire_mm"] = wire
     elif helix.get("applied"):
         notes.append("one edge in view: no diameters; helix correction used the spec's basic "
                      "pitch diameter for the radius")

@@ -310,7 +310,12 @@ def _small_tip(pix, apex, bisector, beta, sigma_e, n_central, depth0=0.0) -> Tip
         raise QualityError("the tool's point is not clear in the image: too few pixels at the tip")
 
     def model(fd: float, r: float = 0.0) -> np.ndarray:
-        return bright - (bright - dark) * _coverage(lat, depth, beta, fd, sigma_e, r)
+        # levels free (linear least squares for each shape), as in the step fits of the edge
+        # finder: the local dark and bright levels only seed nothing here
+        c = _coverage(lat, depth, beta, fd, sigma_e, r)
+        A = np.c_[np.ones_like(c), c]
+        coef, *_ = np.linalg.lstsq(A, val, rcond=None)
+        return A @ coef
 
     def fit(kind: str):
         if kind == "flat":
