@@ -134,3 +134,16 @@ def test_out_of_focus_view_is_refused():
                     dark=30, bright=215, seed=7, supersample=2)
     with pytest.raises(QualityError, match="out of focus"):
         measure_height(img, CAL, reference="point")
+
+
+def test_tool_on_the_other_side_of_the_centre():
+    # centre pointing -x on the right, tool on the left with its tip facing +x, 0.06 mm
+    # below; top edge rising 1 deg toward the tip (outline geometry)
+    shapes = [centre_side_view(apex_mm=(0.4, 0.0), diameter_mm=3.0, pointing_deg=180.0)[0],
+              tool_side_view(tip_mm=(-0.2, -0.06), top_slope_deg=1.0, thickness_mm=1.5,
+                             facing=1)[0]]
+    img, _ = render(shapes, Camera(S, SIZE, rotation_deg=-3.0, centre_mm=(0.0, 0.2)),
+                    blur_px=1.4, noise=2.5, seed=8, supersample=4)
+    r = measure_height(img, CAL, reference="point")
+    assert r.measurements["height_offset"].value == pytest.approx(-0.06, abs=0.002)
+    assert r.measurements["top_slope"].value == pytest.approx(1.0, abs=0.05)

@@ -77,7 +77,8 @@ def test_pin_scale_within_target(s, tilt, gamma, jpeg):
     cal = pc.calibrate_from_pin(R.as_float(img), d_mm, gamma=gamma)
     assert tuple(cal.image_size) == size
     assert abs(cal.mm_per_px / s - 1) < PIN_SCALE_TOL_REL
-    # the stated expanded uncertainty must cover the actual error (k = 2, GUM)
+    # the stated expanded uncertainty must cover the actual error (k = 2, JCGM 100:2008);
+    # factor 1.5 for the renderer's own residual (common practice, no source)
     assert abs(cal.mm_per_px - s) <= max(cal.u_mm_per_px, 1e-12) * 1.5
 
 
@@ -104,3 +105,26 @@ def test_ruled_scale_scale_and_zero_edge_offset(s, spacing, width, angle):
     # the renderer puts every edge on the true boundary: edge offset 0 (within 0.02 px,
     # common practice, no source)
     assert abs(cal.edge_offset_px) < 0.02
+
+
+def test_cli_calibrate_pin_and_load_calibration(tmp_path):
+    # design.md: `profilecheck calibrate IMAGE --pin D --out FILE`; lengths carry a unit.
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    import cv2
+
+    s, size = 0.0075, (400, 300)
+    d_mm = round(0.55 * size[1] * s, 3)
+    img = R.render([R.pin_polygon(d_mm, axis_angle_deg=1.5)], R.View(s, size), blur_px=1.2,
+                   vignetting=0.15, seed=4)
+    png, out = tmp_path / "pin.png", tmp_path / "cal.json"
+    cv2.imwrite(str(png), img)
+    exe = Path(sys.executable).with_name("profilecheck")
+    r = subprocess.run([str(exe), "calibrate", str(png), "--pin", f"{d_mm}mm", "--out",
+                        str(out)], capture_output=True, text=True, timeout=120)
+    assert r.returncode == 0, r.stderr
+    cal = pc.load_calibration(out)
+    assert abs(cal.mm_per_px / s - 1) < PIN_SCALE_TOL_REL
+    assert list(cal.image_size) == list(size)

@@ -194,3 +194,16 @@ def test_roi_picks_one_of_two_tools():
     assert r.measurements["included_angle"].value == pytest.approx(55.0, abs=0.1)
     r = measure_tool(img, CAL, roi=(0, 0, 310, 479))
     assert r.measurements["included_angle"].value == pytest.approx(60.0, abs=0.1)
+
+
+def test_quarter_turn_keeps_and_transpose_swaps_the_flanks(lopsided):
+    # exact image symmetries: a quarter turn keeps handedness, a transpose mirrors it
+    img, truth, r = lopsided
+    turned = measure_tool(np.ascontiguousarray(np.rot90(img)), Calibration(S, 0.0, SIZE[::-1]))
+    flipped = measure_tool(np.ascontiguousarray(img.T), Calibration(S, 0.0, SIZE[::-1]))
+    for k in ("half_left", "half_right", "included_angle"):
+        assert turned.measurements[k].value == pytest.approx(r.measurements[k].value, abs=0.02)
+    assert flipped.measurements["half_left"].value == pytest.approx(
+        r.measurements["half_right"].value, abs=0.02)
+    assert flipped.measurements["half_right"].value == pytest.approx(
+        r.measurements["half_left"].value, abs=0.02)

@@ -255,6 +255,11 @@ class CircleFit:
     span_rad: float = float("nan")
 
     @property
+    def rms(self) -> float:
+        """Alias of ``rms_px`` (docs/contracts.md names it ``rms``)."""
+        return self.rms_px
+
+    @property
     def std_radius_px(self) -> float:
         """Standard uncertainty (k = 1) of the radius, px."""
         return float(np.sqrt(self.cov[2, 2]))

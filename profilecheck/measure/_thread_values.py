@@ -148,13 +148,11 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
 
     if both:
         t, bm = fitted["top"], fitted["bottom"]
-        lens = cal.lens
-        rim = None
-        if lens is not None and math.isfinite(lens.working_distance_mm):
-            from ..calibration.lens import cylinder_axial_diameter_mm
-            rim = lambda dd: cylinder_axial_diameter_mm(dd, lens.working_distance_mm)  # noqa: E731
-            notes.append("diameters corrected for the lens's view of a cylinder rim "
-                         f"(working distance {lens.working_distance_mm:g} mm)")
+        rim = None  # perspective of the rims: referred per point in ._thread_sight
+        if str(helix.get("line_of_sight", "")).startswith("per point"):
+            notes.append("every outline point referred along its own line of sight to the "
+                         "axial section (cylinder perspective and depth of the flanks "
+                         f"included; working distance {cal.lens.working_distance_mm:g} mm)")
         for key, kind in (("major_diameter", "crest"), ("minor_diameter", "root")):
             ct, sct = _level(t, kind)
             cb, scb = _level(bm, kind)

@@ -331,6 +331,15 @@ def _small_tip(pix, apex, bisector, beta, sigma_e, n_central, depth0=0.0) -> Tip
     fd, cost_flat = fit("flat")
     r, cost_round = fit("radius")
     n = len(val)
+    # a flat is only reported when it explains the pixels significantly better than a sharp
+    # point: the drop in the sum of squares must exceed 4 noise variances (chi-square, one
+    # parameter, ~95 %); otherwise the one-sided fit (flat >= 0) would read noise as a flat
+    cost_sharp = float(np.sum((val - model(0.0)) ** 2))
+    noise_var = cost_flat / max(n - 3, 1)
+    if cost_sharp - cost_flat < 4 * noise_var:
+        fd, cost_flat = 0.0, cost_sharp
+    if cost_sharp - cost_round < 4 * noise_var:
+        r, cost_round = 0.0, cost_sharp
     # the radius model must explain the pixels clearly better (F-like ratio; common
     # practice, no source) before a nose radius is reported
     if r > 0.5 and cost_round < 0.9 * cost_flat:

@@ -144,7 +144,7 @@ def _tilt_of(limb: tp.LimbProfile) -> float:
 
 
 def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
-                   roi: Any = None) -> ThreadResult:
+                   roi: Any = None, line_of_sight: bool = True) -> ThreadResult:
     """Measure a screw thread from a backlit silhouette.
 
     Parameters
@@ -159,6 +159,10 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
         the helix correction, and the crest/root form (flat or radiused).
     roi : optional
         Region of interest passed to :func:`profilecheck.imaging.find_edges`.
+    line_of_sight : bool
+        With a lens in the calibration: True (default) follows each outline point's own
+        ray (:mod:`._thread_sight` then :mod:`.helix`); False only undistorts the points
+        and reads them as a parallel view (for comparison: the naive reading).
 
     Returns
     -------
@@ -243,9 +247,33 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
             raw[name] = tp.analyse_limb(_limb_xy(sr, m, name == "top", 0.0), sigma_e_mm=sigma_e,
                                         **_drops(form, raw[name]))
     both = len(raw) == 2
+    if not isinstance(line_of_sight, bool):
+        raise TypeError(f"line_of_sight must be True or False, got {line_of_sight!r}")
+    sight = _sight_model(calibration, frame) if (line_of_sight and both) else None
+    if sight is not None:
+        from ._thread_sight import refer_to_axial_section
+        lead0 = (spec.lead_mm if spec is not None
+                 else float(np.mean([limb.pitch for limb in raw.values()])))
+        rh0 = not bool(getattr(spec, "left_hand", False)) if spec is not None else True
+        plane_sr = sr
+        sr, tan_gamma = refer_to_axial_section(sr, sight, lead_mm=lead0, right_hand=rh0)
+        for name, m in (("top", top_m), ("bottom", bot_m)):
+            if m is not None:
+                raw[name] = tp.analyse_limb(_limb_xy(sr, m, name == "top", 0.0),
+                                            sigma_e_mm=sigma_e, **_drops(form, raw[name]))
+        sight = (sight, plane_sr, tan_gamma)
+    elif calibration.lens is not None and line_of_sight:
+        warnings.append("lens model: one edge in view, so the axis (and each point's line "
+                        "of sight) is not known: read as a parallel view; get both edges "
+                        "in view for the full lens model")
+    elif calibration.lens is not None:
+        warnings.append("lens model: distortion removed but lines of sight not followed "
+                        "(parallel view assumed); diameters and flanks read large off-centre")
 
     helix, fitted = _helix_pass(raw, sr, top_m, bot_m, frame, spec, calibration, sigma_e, form,
-                                both, warnings)
+                                both, warnings, sight)
+    helix["line_of_sight"] = ("per point (perspective referred to the axial section)"
+                              if sight is not None else "parallel view assumed")
     from ._thread_values import assemble
     meas, per_tooth, notes = assemble(fitted, raw, spec, calibration, helix, both, sigma_e)
     for limb in fitted.values():
@@ -300,7 +328,33 @@ def _drops(form: dict[str, Any], prev: tp.LimbProfile | None) -> dict[str, Any]:
             "radiused_crest": form["radiused_crest"], "radiused_root": form["radiused_root"]}
 
 
-def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, warnings):
+def _sight_model(cal: Calibration, frame: AxisFrame):
+    """Projection centre in the axis frame (mm), or None without a usable lens."""
+    lens = cal.lens
+    if lens is None or not (math.isfinite(lens.working_distance_mm)
+                            and lens.working_distance_mm > 0):
+        return None
+    from ._thread_sight import SightModel
+    foot = frame.to_axis(np.array([[lens.cx_px, lens.cy_px]]))[0] * cal.mm_per_px
+    return SightModel(float(foot[0]), float(foot[1]), float(lens.working_distance_mm))
+
+
+def _index_lookup(xy_l: np.ndarray):
+    """Index of the outline point nearest to each (x, y) asked for (the limb fits pass
+    subsets of ``xy_l``, so the nearest point is the point itself)."""
+    from scipy.spatial import cKDTree
+    tree = cKDTree(xy_l)
+
+    def look(x, y):
+        _, i = tree.query(np.column_stack([np.ravel(x), np.ravel(y)]))
+        return i.reshape(np.shape(x))
+    return look
+
+
+def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, warnings,
+                sight_pts=None):
+    """``sight_pts``: None (parallel view) or ``(sight, plane_sr_mm, tan_gamma)`` per outline
+    point (:mod:`._thread_sight`)."""
     """Refit each edge with the helix correction; return (helix dict, fitted limbs)."""
     pitch_seen = float(np.mean([limb.pitch for limb in raw.values()]))
     lead = spec.lead_mm if spec is not None else pitch_seen
@@ -315,7 +369,7 @@ def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, wa
         warnings.append("helix correction not applied: the diameter is unknown (give the spec "
                         "or get both edges in view); flank angles read slightly wide")
         return ({"applied": False, "reason": "diameter unknown"}, dict(raw))
-    lens = cal.lens
+    lens = cal.lens if sight_pts is not None else None
     model = "telecentric (parallel view, line of sight square to the axis assumed)" \
         if lens is None else "lens: line of sight per flank from the calibrated lens"
     fitted = {}
@@ -328,16 +382,24 @@ def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, wa
                  for s in ("left", "right") if limb0.side(s)}
         off = 0.0 if both else (0.5 * d2 - limb0.pitch_line_y)
 
-        def tan_gamma(x, y, _top=top):
-            if lens is None:
-                return 0.0
-            p = frame.to_image(np.column_stack([x, y if _top else -y]) / cal.mm_per_px)
-            u = np.asarray(frame.u)
-            return ((p[:, 0] - lens.cx_px) / lens.fx_px * u[0]
-                    + (p[:, 1] - lens.cy_px) / lens.fy_px * u[1])
+        xy_l = _limb_xy(sr, m, top, 0.0)
+        look = None if lens is None else _index_lookup(xy_l)
+        plane = tg_l = None
+        if lens is not None:
+            sight, plane, tg_l = sight_pts[0], sight_pts[1][m], np.asarray(sight_pts[2])[m]
 
-        def shift(x, y, side, _top=top, _off=off, _theta=theta, _tg=tan_gamma):
+        def tan_gamma(x, y, _look=look, _tg=tg_l):
+            return 0.0 if _look is None else _tg[_look(x, y)]
+
+        def shift(x, y, side, _top=top, _off=off, _theta=theta, _tg=tan_gamma, _look=look,
+                  _plane=plane):
             rad = np.maximum(y + _off, 1e-6)
+            th = _theta.get(side, math.radians(30))
+            if _look is not None:  # exact: perspective and helix together
+                from ._thread_sight import section_flank_x_mm
+                xs = section_flank_x_mm(_plane[_look(x, y)], sight, lead, th, side=side,
+                                        rho_mm=rad, right_hand=right_hand)
+                return (xs - x) if side == "left" else (x - xs)
             return flank_shift_mm(rad, lead, _theta.get(side, math.radians(30)), side=side,
                                   tan_gamma=_tg(x, y), right_hand=right_hand, top_edge=_top)
 
@@ -346,7 +408,6 @@ def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, wa
             return profile_shift_mm(rad, slope, lead, tan_gamma=_tg(x, y),
                                     right_hand=right_hand, top_edge=_top)
 
-        xy_l = _limb_xy(sr, m, top, 0.0)
         fitted[name] = tp.analyse_limb(xy_l, sigma_e_mm=sigma_e, flank_shift=shift,
                                        arc_shift=arc_shift, **_drops(form, limb0))
     psi = lead_angle_rad(lead, d2)
