@@ -135,7 +135,8 @@ class Calibration:
 
     def width_correction_px(self) -> float:
         """Correction in px to add to a measured width of a *dark* feature (diameter, tooth
-        width, tip flat): ``-2 b``. Zero when the offset is absorbed in the scale."""
+        width, tip flat): ``-2 b``. A single-gauge calibration stores b = 0, its offset
+        being absorbed in the scale (``scale_absorbs_offset``)."""
         return -2.0 * self.edge_offset_px
 
     def to_dict(self) -> dict[str, Any]:

@@ -378,38 +378,38 @@ def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, wa
             continue
         limb0 = raw[name]
         top = name == "top"
-        theta = {s: min(max(limb0.mean_angle(s)[0], math.radians(5)), math.radians(45))
-                 for s in ("left", "right") if limb0.side(s)}
         off = 0.0 if both else (0.5 * d2 - limb0.pitch_line_y)
-
         xy_l = _limb_xy(sr, m, top, 0.0)
-        look = None if lens is None else _index_lookup(xy_l)
-        plane = tg_l = None
+        look = tg_l = None
         if lens is not None:
-            sight, plane, tg_l = sight_pts[0], sight_pts[1][m], np.asarray(sight_pts[2])[m]
+            # each ray already turned into its own radial plane (._thread_sight): the
+            # parallel-view shift with that ray's inclination is then exact for straight
+            # flanks (tests/test_lens_thread_sight.py checks it against a direct search)
+            look, tg_l = _index_lookup(xy_l), np.asarray(sight_pts[2])[m]
 
         def tan_gamma(x, y, _look=look, _tg=tg_l):
             return 0.0 if _look is None else _tg[_look(x, y)]
 
-        def shift(x, y, side, _top=top, _off=off, _theta=theta, _tg=tan_gamma, _look=look,
-                  _plane=plane):
-            rad = np.maximum(y + _off, 1e-6)
-            th = _theta.get(side, math.radians(30))
-            if _look is not None:  # exact: perspective and helix together
-                from ._thread_sight import section_flank_x_mm
-                xs = section_flank_x_mm(_plane[_look(x, y)], sight, lead, th, side=side,
-                                        rho_mm=rad, right_hand=right_hand)
-                return (xs - x) if side == "left" else (x - xs)
-            return flank_shift_mm(rad, lead, _theta.get(side, math.radians(30)), side=side,
-                                  tan_gamma=_tg(x, y), right_hand=right_hand, top_edge=_top)
+        # The shift depends on the flank angle: start from the raw fit, then once more from
+        # the corrected one (off-centre the raw angles are out by up to 0.7 deg).
+        limb_th = limb0
+        for _ in range(2 if lens is not None else 1):
+            theta = {s: min(max(limb_th.mean_angle(s)[0], math.radians(5)), math.radians(45))
+                     for s in ("left", "right") if limb_th.side(s)}
 
-        def arc_shift(x, y, slope, _top=top, _off=off, _tg=tan_gamma):
-            rad = np.maximum(y + _off, 1e-6)
-            return profile_shift_mm(rad, slope, lead, tan_gamma=_tg(x, y),
-                                    right_hand=right_hand, top_edge=_top)
+            def shift(x, y, side, _top=top, _off=off, _theta=theta, _tg=tan_gamma):
+                rad = np.maximum(y + _off, 1e-6)
+                return flank_shift_mm(rad, lead, _theta.get(side, math.radians(30)), side=side,
+                                      tan_gamma=_tg(x, y), right_hand=right_hand, top_edge=_top)
 
-        fitted[name] = tp.analyse_limb(xy_l, sigma_e_mm=sigma_e, flank_shift=shift,
-                                       arc_shift=arc_shift, **_drops(form, limb0))
+            def arc_shift(x, y, slope, _top=top, _off=off, _tg=tan_gamma):
+                rad = np.maximum(y + _off, 1e-6)
+                return profile_shift_mm(rad, slope, lead, tan_gamma=_tg(x, y),
+                                        right_hand=right_hand, top_edge=_top)
+
+            limb_th = tp.analyse_limb(xy_l, sigma_e_mm=sigma_e, flank_shift=shift,
+                                      arc_shift=arc_shift, **_drops(form, limb0))
+        fitted[name] = limb_th
     psi = lead_angle_rad(lead, d2)
     helix = {"applied": True, "model": model, "lead_mm": lead, "right_hand": right_hand,
              "diameter_mm": d2, "diameter_source": d_src,
