@@ -212,6 +212,36 @@ def bench_thread_coarse(quick):
                     centre=(0.02, 0.01), keys=keys, tols=COARSE, **kw)
 
 
+def bench_thread_orientation(quick):
+    print("\n== thread orientation, one edge, 3.75 um/px (M3x0.5; same targets)")
+    s, P, d = 0.00375, 0.5, 3.0
+    t = basic(P, d)
+    top = R.thread_polygons(P, d, x0_mm=-1.6, x1_mm=1.6, both=False, step_mm=1e-3)[0][:-2]
+    flipped = np.vstack([[[-1.6, 10.0]], top * [1, -1], [[1.6, 10.0]]])  # crests down
+    for name, size, rot, centre, polys, pin_deg in [
+            ("lower edge (crests down)", (640, 240), 0.4, (0.03, -(d / 2 - 0.15)), [flipped], 2.0),
+            ("axis vertical (rot 90.4)", (240, 640), 90.4, (0.03, d / 2 - 0.15), None, 88.0),
+            ("upside down (rot 180.4)", (640, 240), 180.4, (0.03, d / 2 - 0.15), None, 2.0)]:
+        print(f"- {name}")
+        dd = round(0.55 * min(size) * s, 3)
+        cal = pc.calibrate_from_pin(R.as_float(R.render(
+            [R.pin_polygon(dd, axis_angle_deg=pin_deg)], R.View(s, size), blur_px=1.2,
+            vignetting=0.15, seed=3)), dd)
+        polys = polys or R.thread_polygons(P, d, x0_mm=-1.6, x1_mm=1.6, both=False, step_mm=1e-3)
+        img = R.render(polys, R.View(s, size, rotation_deg=rot, centre_mm=centre), blur_px=1.2,
+                       vignetting=0.15, seed=5)
+        try:
+            res = pc.measure_thread(R.as_float(img), cal, spec="M3x0.5-6g")
+        except pc.ProfilecheckError as e:
+            fail_row("thread orient", name, e)
+            continue
+        m = res.measurements
+        for k in ("pitch", "crest_flat", "root_flat", "depth"):
+            row("thread orient", name, k, t[k], m[k].value, m[k].u, FINE[k], "um", 1000)
+        for k in ("flank_left", "flank_right"):
+            row("thread orient", name, k, 30.0, m[k].value, m[k].u, FINE[k], "deg")
+
+
 def bench_spec_mismatch(quick):
     print("\n== wrong spec for the part (expect a pitch check row or a warning)")
     s, size = 0.010, (440, 720)
@@ -369,7 +399,8 @@ def main(argv=None):
             f()
         except Exception:  # keep going: this script reports, it does not stop
             traceback.print_exc()
-    for f in (bench_thread_fine, bench_thread_coarse, bench_spec_mismatch, bench_tool,
+    for f in (bench_thread_fine, bench_thread_orientation, bench_thread_coarse,
+              bench_spec_mismatch, bench_tool,
               bench_height):
         try:
             f(quick)

@@ -29,6 +29,7 @@ _API = {
     "measure_thread": "profilecheck.measure",
     "measure_tool": "profilecheck.measure",
     "measure_height": "profilecheck.measure",
+    "measure_squareness": "profilecheck.measure",
 }
 
 __all__ = sorted(_API) + ["__version__"]

@@ -194,7 +194,8 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         Fit an arc (radius) instead of a flat (width).
     flank_shift : callable or None
         Helix / line-of-sight model: the image position of each flank point is moved back
-        toward its tooth by ``flank_shift(x, y, side)`` before the line fit.
+        toward its tooth by ``flank_shift(x, y, side)`` before the line fit (NaN drops the
+        point: its outline is not drawn by the flank).
     arc_shift : callable or None
         Same model for points of rounded crests and roots (first order, from the local
         slope of a first circle fit).
@@ -277,6 +278,10 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
             continue  # flank cut by the end of the edge or by damage: not a whole flank
         if flank_shift is not None:
             s = np.asarray(flank_shift(px, py, side), dtype=float)
+            ok = np.isfinite(s)  # NaN: the outline point is not drawn by the flank
+            if ok.sum() < 5:
+                continue
+            px, py, s = px[ok], py[ok], s[ok]
             px = px + s if side == "left" else px - s
         line = fit_flank_line(np.column_stack([px, py]))
         ang = math.atan(line.k) if side == "left" else math.atan(-line.k)

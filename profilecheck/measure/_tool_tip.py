@@ -16,10 +16,15 @@ more than a blur margin, so the corner rounding of the 50 % contour is left out)
 
 The model with the clearly smaller residual wins (a circle must beat the line by a factor
 :data:`ROUND_RATIO` and bulge by more than :data:`MIN_SAGITTA_PX`, so a flat is never called
-round on noise). When too few points lie clear of the corners, the tip is sized from how far
-its 50 % contour lies behind the flanks' intersection, against the recession a blurred
-truncated wedge of that angle would show (:func:`recession_px`): a sharp 60 deg point recedes
-1.29 sigma (vision-notes section 1.2).
+round on noise); the radius is then refitted with its centre on the bisector, tangent to
+both flank lines. When too few points lie clear of the corners (small tips: the edge finder
+gives few points where its step model fails), the tip is sized from the pixels round it: the
+Gaussian-blurred coverage of a wedge of the measured angle, truncated by a flat or rounded
+by an arc tangent to both flanks, is fitted with free grey levels, and the better of the two
+shapes is kept; a flat or radius is reported only when it lowers the sum of squares by more
+than 4 noise variances (chi-square, one parameter), otherwise the point is sharp. The model
+holds the corner recession by construction (:func:`recession_px`: a sharp 60 deg point
+recedes 1.29 sigma, vision-notes section 1.2).
 """
 
 from __future__ import annotations
@@ -276,8 +281,9 @@ def _small_tip(pix, apex, bisector, beta, sigma_e, n_central, depth0=0.0) -> Tip
     Edge points thin out at a sharp or nearly sharp point (the step model of the edge finder
     does not hold there), so the tip is sized from the pixels themselves: the model is the
     Gaussian-blurred coverage of a wedge of the measured half-angle truncated by a flat
-    square to the bisector, between the local dark and bright levels; the flat depth
-    minimises the sum of squared grey-level residuals. The model holds the corner recession
+    square to the bisector (or rounded by an arc tangent to both flanks), with free dark and
+    bright levels; the flat depth (or radius) minimises the sum of squared grey-level
+    residuals. The model holds the corner recession
     of vision-notes section 1.2 by construction.
 
     ``pix`` is ``(img_lin, dark, bright)``: the linearised image and the local levels;
@@ -310,8 +316,8 @@ def _small_tip(pix, apex, bisector, beta, sigma_e, n_central, depth0=0.0) -> Tip
         raise QualityError("the tool's point is not clear in the image: too few pixels at the tip")
 
     def model(fd: float, r: float = 0.0) -> np.ndarray:
-        # levels free (linear least squares for each shape), as in the step fits of the edge
-        # finder: the local dark and bright levels only seed nothing here
+        # grey levels free (linear least squares for each shape), as in the edge finder's
+        # step fits; the edge set's local levels serve only the contrast check
         c = _coverage(lat, depth, beta, fd, sigma_e, r)
         A = np.c_[np.ones_like(c), c]
         coef, *_ = np.linalg.lstsq(A, val, rcond=None)

@@ -32,7 +32,8 @@ import math
 
 import numpy as np
 
-__all__ = ["lead_angle_rad", "flank_shift_mm", "flank_shift_approx_mm", "profile_shift_mm",
+__all__ = ["lead_angle_rad", "flank_shift_mm", "flank_contact_radius_mm",
+           "flank_shift_approx_mm", "profile_shift_mm",
            "apparent_half_angle_rad", "pitch_diameter_error_mm"]
 
 
@@ -92,6 +93,31 @@ def flank_shift_mm(radius_mm: np.ndarray | float, lead_mm: float, half_angle_rad
     ``g'(phi) = T Y sec(phi) tan(phi) + b + c Y sec^2(phi) = 0`` from the second-order root;
     the shift is ``-g(phi*)``.
     """
+    phi, g = _contact(radius_mm, lead_mm, half_angle_rad, side, tan_gamma, right_hand, top_edge)
+    return np.maximum(-g, 0.0)
+
+
+def flank_contact_radius_mm(radius_mm: np.ndarray | float, lead_mm: float,
+                            half_angle_rad: float, *, side: str = "left",
+                            tan_gamma: np.ndarray | float = 0.0, right_hand: bool = True,
+                            top_edge: bool = True) -> np.ndarray:
+    """Radius (mm) on the helicoidal flank where the outline point's line of sight grazes
+    it: ``Y sec(phi*)`` with ``phi*`` the contour-generator angle of
+    :func:`flank_shift_mm` (same parameters). Where it lies above the crest (or below the
+    root) the outline there is drawn by the crest (root) edge, not by the flank.
+
+    Examples
+    --------
+    >>> r = flank_contact_radius_mm(2.675, 1.0, math.radians(30))   # M6x1, square view
+    >>> bool(2.675 < float(r) < 2.69)
+    True
+    """
+    phi, _ = _contact(radius_mm, lead_mm, half_angle_rad, side, tan_gamma, right_hand, top_edge)
+    return np.asarray(radius_mm, dtype=float) / np.cos(phi)
+
+
+def _contact(radius_mm, lead_mm, half_angle_rad, side, tan_gamma, right_hand, top_edge):
+    """Contour-generator angle phi* and g(phi*) (see :func:`flank_shift_mm` Notes)."""
     _check(half_angle_rad, lead_mm)
     if side not in ("left", "right"):
         raise ValueError(f"side must be 'left' or 'right', got {side!r}")
@@ -115,7 +141,7 @@ def flank_shift_mm(radius_mm: np.ndarray | float, lead_mm: float, half_angle_rad
         if np.all(np.abs(step) < 1e-14):
             break
     g = tt * y * (1.0 / np.cos(phi) - 1.0) + a * phi + c * y * np.tan(phi)
-    return np.maximum(-g, 0.0)
+    return phi, g
 
 
 def flank_shift_approx_mm(radius_mm: float, lead_mm: float, half_angle_rad: float, *,

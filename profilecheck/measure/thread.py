@@ -38,7 +38,7 @@ from ._thread_axis import AxisFrame, initial_axis, split_edges
 from ._thread_overlays import build_overlays
 from ._thread_result import ThreadResult
 from ._thread_verdict import remaining_infeed, thread_checks
-from .helix import flank_shift_mm, lead_angle_rad, profile_shift_mm
+from .helix import flank_contact_radius_mm, flank_shift_mm, lead_angle_rad, profile_shift_mm
 
 __all__ = ["measure_thread", "ThreadResult"]
 
@@ -392,15 +392,33 @@ def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, wa
 
         # The shift depends on the flank angle: start from the raw fit, then once more from
         # the corrected one (off-centre the raw angles are out by up to 0.7 deg).
+        span = None
+        if lens is not None and limb0.crests and limb0.roots:
+            dr = _drops(form, limb0)
+            span = (float(np.mean([f.level for f in limb0.roots])) + dr["root_drop_mm"]
+                    + 3.0 * sigma_e,
+                    float(np.mean([f.level for f in limb0.crests])) - dr["crest_drop_mm"]
+                    - 3.0 * sigma_e)
         limb_th = limb0
         for _ in range(2 if lens is not None else 1):
             theta = {s: min(max(limb_th.mean_angle(s)[0], math.radians(5)), math.radians(45))
                      for s in ("left", "right") if limb_th.side(s)}
 
-            def shift(x, y, side, _top=top, _off=off, _theta=theta, _tg=tan_gamma):
+            def shift(x, y, side, _top=top, _off=off, _theta=theta, _tg=tan_gamma,
+                      _span=span):
                 rad = np.maximum(y + _off, 1e-6)
-                return flank_shift_mm(rad, lead, _theta.get(side, math.radians(30)), side=side,
-                                      tan_gamma=_tg(x, y), right_hand=right_hand, top_edge=_top)
+                th = _theta.get(side, math.radians(30))
+                tg = _tg(x, y)
+                out = flank_shift_mm(rad, lead, th, side=side, tan_gamma=tg,
+                                     right_hand=right_hand, top_edge=_top)
+                if _span is not None:
+                    # off-centre the grazing point climbs toward the crest (or sinks to the
+                    # root) faster than the outline: beyond them the crest or root edge
+                    # draws the outline, not the flank (drop those points)
+                    rho = flank_contact_radius_mm(rad, lead, th, side=side, tan_gamma=tg,
+                                                  right_hand=right_hand, top_edge=_top)
+                    out = np.where((rho > _span[0]) & (rho < _span[1]), out, np.nan)
+                return out
 
             def arc_shift(x, y, slope, _top=top, _off=off, _tg=tan_gamma):
                 rad = np.maximum(y + _off, 1e-6)
