@@ -317,8 +317,10 @@ def calibrate_lens_from_points(object_points: Sequence[np.ndarray], image_points
     if max(hold) > 3.0 * max(rms, 0.02):
         warnings.append(f"a held-out view misses by {max(hold):.3f} px (fit RMS {rms:.3f} px): "
                         f"check that view for motion blur or a warped board")
+    reach = max(float(np.max(np.hypot(p[:, 0] - k[0, 2], p[:, 1] - k[1, 2]))) for p in img)
     lens = Lens(fx_px=fx, fy_px=fy, cx_px=float(k[0, 2]), cy_px=float(k[1, 2]),
-                dist=tuple(float(v) for v in d5), rms_reprojection_px=rms, u_fx_px=2.0 * std_fx)
+                dist=tuple(float(v) for v in d5), rms_reprojection_px=rms, u_fx_px=2.0 * std_fx,
+                grid_radius_px=reach)
     return GridCalibration(
         lens=lens, image_size=(w, h), square_mm=float(square_mm), pattern=tuple(pattern),
         terms=t, rms_px=rms, per_view_rms_px=tuple(float(v) for v in per_view),

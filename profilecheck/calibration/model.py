@@ -40,7 +40,9 @@ class Lens:
     ``fx_px``, ``fy_px`` focal lengths in px; ``cx_px``, ``cy_px`` principal point (px,
     pixel-centre convention); ``dist`` OpenCV distortion coefficients (k1, k2, p1, p2, k3);
     ``working_distance_mm`` Z from the projection centre to the measurement plane;
-    ``rms_reprojection_px`` of the grid fit.
+    ``rms_reprojection_px`` of the grid fit; ``grid_radius_px`` the largest distance of a
+    grid corner from the principal point over all views (NaN when unknown, as in files
+    written before it was kept): beyond it the distortion is extrapolated.
     """
 
     fx_px: float
@@ -51,6 +53,7 @@ class Lens:
     working_distance_mm: float = float("nan")
     rms_reprojection_px: float = float("nan")
     u_fx_px: float = float("nan")
+    grid_radius_px: float = float("nan")
 
 
 @dataclass(frozen=True)
@@ -181,7 +184,7 @@ class Calibration:
                 lk = {k: _num(lens[k], f"lens.{k}", source) for k in ("fx_px", "fy_px", "cx_px", "cy_px")}
             except KeyError as e:
                 raise CalibrationError(f"{source}: lens is missing {e.args[0]}") from None
-            for k in ("working_distance_mm", "rms_reprojection_px", "u_fx_px"):
+            for k in ("working_distance_mm", "rms_reprojection_px", "u_fx_px", "grid_radius_px"):
                 if k in lens:
                     lk[k] = _num(lens[k], f"lens.{k}", source, allow_nan=True)
             dist = lens.get("dist", [0, 0, 0, 0, 0])

@@ -34,7 +34,7 @@ from scipy.stats import chi2
 
 from ._edgeset import EdgeSet, empty_edgeset
 from ._seeds import Seeds, seeds_from_contours
-from ._stepfit import fit_steps
+from ._stepfit import StepFits, fit_steps
 from .silhouette import _EDGE_CLEAR_PX, flatten_backlight, linearise
 
 __all__ = ["find_edges", "EdgeSet"]
@@ -51,6 +51,9 @@ _NU_POOL = 10.0            # prior degrees of freedom of the pooled noise in eac
 _RESID_P = 0.999           # chi-square quantile for the residual test
 _CLIP_WARN = 1e-4
 _NOISE_FLOOR_REL = 3e-3     # of the (flattened, unit) contrast
+# a fit that moves farther than this from its seed is abandoned (the position test below
+# rejects anything beyond 2 px from the seed in any case)
+_MAX_SHIFT_PX = 2.5
 
 
 def _check_roi(roi, shape):
@@ -102,7 +105,8 @@ def _window_mask(fvals, inb, hw, margin, HW):
     return m, direction
 
 
-def _fit_group(img, flat, censored, seeds, idx, sigma_b, *, hw=None, t=None, x0=None, s0=None):
+def _fit_group(img, flat, censored, seeds, idx, sigma_b, *, hw=None, t=None, x0=None, s0=None,
+               max_shift=None):
     n_a = seeds.n_axis[idx]
     n_o = seeds.n_other[idx]
     se = math.sqrt(sigma_b ** 2 + 1.0 / 12.0)
@@ -124,11 +128,34 @@ def _fit_group(img, flat, censored, seeds, idx, sigma_b, *, hw=None, t=None, x0=
         x0 = seeds.pos[idx] - start
     if s0 is None:
         s0 = sigma_b / n_a
-    res = fit_steps(vals, m, direction, t, x0, s0)
     n_left = (m[:, :HW + 1]).sum(1)
     n_right = (m[:, HW + 1:]).sum(1)
     enough = (n_left >= 3) & (n_right >= 3) & (m.sum(1) >= 10)
+    t = np.broadcast_to(np.asarray(t, dtype=np.float64), enough.shape)
+    x0 = np.broadcast_to(np.asarray(x0, dtype=np.float64), enough.shape)
+    s0 = np.broadcast_to(np.asarray(s0, dtype=np.float64), enough.shape)
+    if max_shift is None or enough.all():
+        res = fit_steps(vals, m, direction, t, x0, s0, max_shift=max_shift)
+    else:
+        # profiles without enough samples on both sides are rejected by every caller that
+        # passes max_shift: leave them out of the fit (results NaN, not converged)
+        ii = np.flatnonzero(enough)
+        sub = fit_steps(vals[ii], m[ii], direction[ii], t[ii], x0[ii], s0[ii],
+                        max_shift=max_shift)
+        res = _scatter_fits(sub, ii, len(enough), x0)
     return res, start, direction, enough, hw, thin
+
+
+def _scatter_fits(sub: StepFits, ii, n: int, x0) -> StepFits:
+    def put(v, fill):
+        out = np.full(n, fill, dtype=v.dtype)
+        out[ii] = v
+        return out
+    x = np.array(x0, dtype=np.float64)
+    x[ii] = sub.x0
+    return StepFits(x0=x, B=put(sub.B, np.nan), C=put(sub.C, np.nan), s=put(sub.s, np.nan),
+                    var_x0_unit=put(sub.var_x0_unit, np.nan), rss=put(sub.rss, np.nan),
+                    dof=put(sub.dof, 0.0), converged=put(sub.converged, False))
 
 
 def _duplicates(along_x, line, pos, ok):
@@ -270,7 +297,8 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         usable = np.arange(n_seed)
     pilot = usable[np.linspace(0, len(usable) - 1, min(_PILOT_N, len(usable))).astype(int)]
     hw_p = np.full(len(pilot), _PILOT_HALF_WINDOW)
-    pr, _, _, p_enough, _, _ = _fit_group(work, fs, censored, seeds, pilot, 1.0, hw=hw_p)
+    pr, _, _, p_enough, _, _ = _fit_group(work, fs, censored, seeds, pilot, 1.0, hw=hw_p,
+                                          max_shift=_MAX_SHIFT_PX)
     sb_p = pr.s * seeds.n_axis[pilot]
     good_p = pr.converged & p_enough & np.isfinite(sb_p) & (pr.C > 0.3)
     sigma_b = float(np.median(sb_p[good_p])) if good_p.sum() >= 3 else 1.0
@@ -282,7 +310,8 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         scale_img = np.maximum(sil.background - sil.dark_level, 1e-9)
 
     idx = np.arange(n_seed)
-    res, start, direction, enough, hw, thin = _fit_group(work, fs, censored, seeds, idx, sigma_b)
+    res, start, direction, enough, hw, thin = _fit_group(work, fs, censored, seeds, idx, sigma_b,
+                                                         max_shift=_MAX_SHIFT_PX)
     fit = {"x0": res.x0.copy(), "B": res.B.copy(), "C": res.C.copy(), "s": res.s.copy(),
            "var": res.var_x0_unit.copy(), "rss": res.rss.copy(), "dof": np.maximum(res.dof, 1.0)}
     ax_all = seeds.along_x
@@ -323,7 +352,8 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     redo = pi[sel]
     if len(redo):
         r2, _, _, en2, _, _ = _fit_group(work, fs, censored, seeds, redo, sigma_b, hw=hw[redo],
-                                         t=t_new[sel], x0=fit["x0"][redo], s0=fit["s"][redo])
+                                         t=t_new[sel], x0=fit["x0"][redo], s0=fit["s"][redo],
+                                         max_shift=1.0)
         good2 = r2.converged & en2 & (np.abs(r2.x0 - fit["x0"][redo]) < 0.5)
         gi = redo[good2]
         fit["x0"][gi], fit["B"][gi], fit["C"][gi] = r2.x0[good2], r2.B[good2], r2.C[good2]

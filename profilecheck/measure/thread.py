@@ -190,6 +190,8 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
     """
     if not isinstance(calibration, Calibration):
         raise TypeError(f"calibration must be a Calibration, got {type(calibration).__name__}")
+    if not isinstance(line_of_sight, bool):
+        raise TypeError(f"line_of_sight must be True or False, got {line_of_sight!r}")
     img, image_name = _load(image)
     spec = _resolve_spec(spec)
     calibration.check_image(img.shape)
@@ -247,8 +249,6 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
             raw[name] = tp.analyse_limb(_limb_xy(sr, m, name == "top", 0.0), sigma_e_mm=sigma_e,
                                         **_drops(form, raw[name]))
     both = len(raw) == 2
-    if not isinstance(line_of_sight, bool):
-        raise TypeError(f"line_of_sight must be True or False, got {line_of_sight!r}")
     sight = _sight_model(calibration, frame) if (line_of_sight and both) else None
     if sight is not None:
         from ._thread_sight import refer_to_axial_section
@@ -276,6 +276,10 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
                               if sight is not None else "parallel view assumed")
     from ._thread_values import assemble
     meas, per_tooth, notes = assemble(fitted, raw, spec, calibration, helix, both, sigma_e)
+    if calibration.lens is None:
+        notes.append("no lens model in the calibration (gauge only): a telecentric (parallel) "
+                     "view is assumed; through an ordinary lens, readings away from the centre "
+                     "of the picture are not corrected")
     for limb in fitted.values():
         warnings.extend(limb.warnings)
     checks = thread_checks(meas, spec) if spec is not None else ()
