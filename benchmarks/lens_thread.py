@@ -8,9 +8,9 @@ without it (distortion removed, points read as a parallel view) side by side.
 
 Renders (profilecheck.synth, exact geometry): checkerboard views for the grid calibration
 (as benchmarks/lens.py), a 6 mm pin for the scale, and an M6x1 thread running through the
-whole field, ray-cast against the helical solid through the same distorting pinhole.
-Truth: the thread's axial section (ISO 68-1 basic profile of M6x1: d2 = 6 - 0.6495 P =
-5.3505 mm, flank half-angle 30 deg, pitch 1 mm).
+whole field, ray-cast against the helical solid through the same distorting pinhole; an
+M10x1.5 is printed as well (no target stated for it). Truth: the thread's axial section
+(ISO 68-1 basic profile: d2 = d - 0.6495 P, M6x1 5.3505 mm; flank half-angle 30 deg).
 
 Run: ``.venv/bin/python benchmarks/lens_thread.py [--true-lens]`` (``--true-lens`` skips
 the grid calibration and uses the render's own lens).
@@ -51,6 +51,42 @@ def _lens(cam: Camera, true_lens: bool) -> Lens:
     return g.lens
 
 
+def _one_thread(cam, cal_lens, designation, pitch_mm, major_mm, worst):
+    """Render one thread through the whole field, measure each third with and without the
+    lens model, print the errors; update ``worst`` (lens model) when given."""
+    w, h = cam.image_size
+    t1 = time.perf_counter()
+    img, truth = render_thread(cam, pitch_mm=pitch_mm, major_d_mm=major_mm, thread_length_mm=17.0,
+                               x_start_mm=-8.5, blur_px=1.0, noise=2.0, dark=28, bright=225,
+                               seed=12)
+    print(f"{designation}: ray-cast render {time.perf_counter() - t1:.1f} s")
+    th = truth["thread"]
+    spec = thread_spec(designation)
+    a = img.astype(float) / 255.0
+    print(f"{'third':7s} {'model':7s} {'pitch %':>9s} {'PD um':>8s} {'left deg':>9s} "
+          f"{'right deg':>9s} {'major um':>9s} {'minor um':>9s} {'U(PD) um':>9s} {'s':>5s}")
+    for k, name in enumerate(("left", "centre", "right")):
+        roi = (k * w // 3, 0, (k + 1) * w // 3, h)
+        for model, los in (("lens", True), ("naive", False)):
+            t = time.perf_counter()
+            r = measure_thread(a, cal_lens, spec=spec, roi=roi, line_of_sight=los)
+            dt = time.perf_counter() - t
+            m = r.measurements
+            e_p = m["pitch"].value / th["pitch_mm"] - 1
+            e_pd = m["pitch_diameter"].value - th["pitch_d_mm"]
+            e_l = m["flank_left"].value - th["flank_left_deg"]
+            e_r = m["flank_right"].value - th["flank_right_deg"]
+            e_min = (m["minor_diameter"].value - th["minor_d_mm"]) if "minor_diameter" in m \
+                else float("nan")
+            print(f"{name:7s} {model:7s} {100 * e_p:+9.4f} {1000 * e_pd:+8.2f} {e_l:+9.3f} "
+                  f"{e_r:+9.3f} {1000 * (m['major_diameter'].value - th['major_d_mm']):+9.2f} "
+                  f"{1000 * e_min:+9.2f} {1000 * m['pitch_diameter'].u:9.2f} {dt:5.1f}")
+            if los and worst is not None:
+                worst["pitch"] = max(worst["pitch"], abs(e_p))
+                worst["pd"] = max(worst["pd"], abs(e_pd))
+                worst["flank"] = max(worst["flank"], abs(e_l), abs(e_r))
+
+
 def main(argv: list[str]) -> int:
     true_lens = "--true-lens" in argv
     w, h = 1600, 1200
@@ -66,44 +102,20 @@ def main(argv: list[str]) -> int:
     print(f"6 mm pin with the lens: scale {100 * (cal_lens.mm_per_px / 0.01 - 1):+.4f} %, "
           f"Z = {cal_lens.lens.working_distance_mm:.3f} mm")
     t1 = time.perf_counter()
-    img, truth = render_thread(cam, pitch_mm=1.0, major_d_mm=6.0, thread_length_mm=17.0,
-                               x_start_mm=-8.5, blur_px=1.0, noise=2.0, dark=28, bright=225,
-                               seed=12)
-    t2 = time.perf_counter()
-    print(f"calibration {t1 - t0:.1f} s; thread ray-cast render {t2 - t1:.1f} s")
-    th = truth["thread"]
-    spec = thread_spec("M6x1-6g")
-    a = img.astype(float) / 255.0
+    print(f"calibration {t1 - t0:.1f} s")
     worst = {"pitch": 0.0, "pd": 0.0, "flank": 0.0}
-    print(f"{'third':7s} {'model':7s} {'pitch %':>9s} {'PD um':>8s} {'left deg':>9s} "
-          f"{'right deg':>9s} {'major um':>9s} {'minor um':>9s} {'U(PD) um':>9s} {'s':>5s}")
-    for k, name in enumerate(("left", "centre", "right")):
-        roi = (k * w // 3, 0, (k + 1) * w // 3, h)
-        for model, los in (("lens", True), ("naive", False)):
-            t = time.perf_counter()
-            r = measure_thread(a, cal_lens, spec=spec, roi=roi, line_of_sight=los)
-            dt = time.perf_counter() - t
-            m = r.measurements
-            e_p = m["pitch"].value / th["pitch_mm"] - 1
-            e_pd = m["pitch_diameter"].value - th["pitch_d_mm"]
-            e_l = m["flank_left"].value - th["flank_left_deg"]
-            e_r = m["flank_right"].value - th["flank_right_deg"]
-            print(f"{name:7s} {model:7s} {100 * e_p:+9.4f} {1000 * e_pd:+8.2f} {e_l:+9.3f} "
-                  f"{e_r:+9.3f} {1000 * (m['major_diameter'].value - th['major_d_mm']):+9.2f} "
-                  f"{1000 * (m['minor_diameter'].value - th['minor_d_mm']):+9.2f} "
-                  f"{1000 * m['pitch_diameter'].u:9.2f} {dt:5.1f}")
-            if los:
-                worst["pitch"] = max(worst["pitch"], abs(e_p))
-                worst["pd"] = max(worst["pd"], abs(e_pd))
-                worst["flank"] = max(worst["flank"], abs(e_l), abs(e_r))
-    print(f"worst with the lens model: pitch {100 * worst['pitch']:.4f} % (target "
+    for designation, pitch_mm, major_mm, counts in (("M6x1-6g", 1.0, 6.0, True),
+                                                     ("M10x1.5-6g", 1.5, 10.0, False)):
+        _one_thread(cam, cal_lens, designation, pitch_mm, major_mm, worst if counts else None)
+    print(f"worst with the lens model (M6x1): pitch {100 * worst['pitch']:.4f} % (target "
           f"{100 * PITCH_TARGET_REL} %, ratio {worst['pitch'] / PITCH_TARGET_REL:.2f}); PD "
           f"{1000 * worst['pd']:.2f} um (target 5 um, ratio {worst['pd'] / PD_TARGET_MM:.2f}); "
           f"flanks {worst['flank']:.3f} deg (target 0.1, ratio {worst['flank'] / FLANK_TARGET_DEG:.2f})")
     ok = (worst["pitch"] <= PITCH_TARGET_REL and worst["pd"] <= PD_TARGET_MM
           and worst["flank"] <= FLANK_TARGET_DEG)
-    print(f"targets: {'MET' if ok else 'NOT MET'} (minor diameter is not a target: off-centre "
-          "the crests hide the roots from the inclined lines of sight)")
+    print(f"targets: {'MET' if ok else 'NOT MET'} (minor diameter is not a target; off-centre "
+          "the crests hide the ends of the root flats from the inclined lines of sight, and "
+          "those parts are left out)")
     return 0 if ok else 1
 
 

@@ -133,3 +133,54 @@ def test_line_of_sight_must_be_bool(scenes, pin_cal):
     img, _, pp = scenes["centre"]
     with pytest.raises(TypeError, match="line_of_sight"):
         measure_thread(img, _cal_for(pin_cal, pp), line_of_sight="yes")
+
+
+def test_outline_beyond_the_grid_is_flagged(scenes, pin_cal):
+    # The edge crop reaches 8 mm (800 px) from the principal point: a grid whose corners
+    # reached only 500 px leaves that distortion extrapolated; one reaching 2000 px does not.
+    img, _, pp = scenes["edge"]
+    base = _cal_for(pin_cal, pp)
+    short = replace(base, lens=replace(base.lens, grid_radius_px=500.0))
+    wide = replace(base, lens=replace(base.lens, grid_radius_px=2000.0))
+    w_short = measure_thread(img, short, spec="M6x1-6g").warnings
+    w_wide = measure_thread(img, wide, spec="M6x1-6g").warnings
+    assert any("grid reached" in w for w in w_short)
+    assert not any("grid reached" in w for w in w_wide)
+
+
+def test_camera_label_mismatch_warns(scenes, pin_cal):
+    img, _, pp = scenes["centre"]
+    cal = replace(_cal_for(pin_cal, pp), label="bench scope A")
+    assert any("calibration is for 'bench scope A'" in w
+               for w in measure_thread(img, cal, camera_label="bench scope B").warnings)
+    assert not any("calibration is for" in w
+                   for w in measure_thread(img, cal, camera_label="bench scope A").warnings)
+    with pytest.raises(TypeError, match="camera_label"):
+        measure_thread(img, cal, camera_label=3)
+
+
+def test_grid_reach_in_calibration_file(tmp_path):
+    # Kept in the file; a file written before the field existed still loads (None).
+    from profilecheck.calibration import load_calibration, save_calibration
+    lens = Lens(5000.0, 5000.0, 799.5, 599.5, working_distance_mm=50.0, grid_radius_px=912.5)
+    cal = Calibration(0.01, 1e-6, (1600, 1200), lens=lens)
+    save_calibration(cal, tmp_path / "c.json")
+    assert load_calibration(tmp_path / "c.json").lens.grid_radius_px == 912.5
+    d = cal.to_dict()
+    del d["lens"]["grid_radius_px"]
+    assert Calibration.from_dict(d).lens.grid_radius_px is None
+
+
+def test_grid_fit_records_its_reach():
+    # The grid fit keeps the largest corner distance from its principal point (rendered board
+    # corners through a pinhole; profilecheck.scenario, as benchmarks/lens.py).
+    from profilecheck.calibration.grid import calibrate_lens_from_points, grid_object_points
+    from profilecheck.scenario.calibration import board_views
+    cam = Camera(0.01, (1600, 1200), working_distance_mm=50.0, k1=-0.75)
+    views = board_views(cam, (11, 8), 1.0, n_views=6, seed=3)
+    corners = [c for _, c, _ in views]
+    g = calibrate_lens_from_points([grid_object_points((11, 8), 1.0)] * len(corners), corners,
+                                   (1600, 1200), terms="k1k2")
+    reach = max(np.hypot(c[:, 0] - g.lens.cx_px, c[:, 1] - g.lens.cy_px).max() for c in corners)
+    assert g.lens.grid_radius_px == pytest.approx(reach, abs=1e-9)
+    assert 400 < g.lens.grid_radius_px < 1000

@@ -33,6 +33,11 @@ EDGE_LOCATION_BOUND_PX = 0.02
 #: faces, chamfers, dust) (ours, no source).
 _NORMAL_TOL_DEG = 10.0
 
+#: Room (px) an edge needs from the image border for its profile to be fitted: the edge
+#: fit's window is at least +/-7 px (profilecheck.imaging.find_edges), plus 3 px for the
+#: blur's tail at 1-1.5 px blur (ours, no source). Used in messages only.
+EDGE_CLEAR_OF_BORDER_PX = 10
+
 #: Fewest points and shortest run (px) accepted for each edge line (ours, no source).
 MIN_EDGE_POINTS = 60
 MIN_EDGE_LENGTH_PX = 60.0
@@ -165,7 +170,9 @@ def find_bar_edges(xy: np.ndarray, normal: np.ndarray, std: np.ndarray, *, blur_
         runs = [sel[r] for r in split_clusters(p, gap=max(3.0, 3.0 * blur_px if math.isfinite(blur_px) else 3.0))]
         runs = [r for r in runs if len(r) >= MIN_EDGE_POINTS]
         if not runs:
-            raise CalibrationError(f"{hint} (one side has no straight edge)")
+            raise CalibrationError(f"{hint} (one side has no straight edge: keep both sides "
+                                   f"at least {EDGE_CLEAR_OF_BORDER_PX} px inside the picture's "
+                                   f"border)")
         groups.append(max(runs, key=len))
     low, high = groups
     if float(np.median(xy[low] @ u)) >= float(np.median(xy[high] @ u)):

@@ -41,7 +41,7 @@ class Lens:
     pixel-centre convention); ``dist`` OpenCV distortion coefficients (k1, k2, p1, p2, k3);
     ``working_distance_mm`` Z from the projection centre to the measurement plane;
     ``rms_reprojection_px`` of the grid fit; ``grid_radius_px`` the largest distance of a
-    grid corner from the principal point over all views (NaN when unknown, as in files
+    grid corner from the principal point over all views (None when unknown, as in files
     written before it was kept): beyond it the distortion is extrapolated.
     """
 
@@ -53,7 +53,7 @@ class Lens:
     working_distance_mm: float = float("nan")
     rms_reprojection_px: float = float("nan")
     u_fx_px: float = float("nan")
-    grid_radius_px: float = float("nan")
+    grid_radius_px: float | None = None
 
 
 @dataclass(frozen=True)
@@ -184,7 +184,9 @@ class Calibration:
                 lk = {k: _num(lens[k], f"lens.{k}", source) for k in ("fx_px", "fy_px", "cx_px", "cy_px")}
             except KeyError as e:
                 raise CalibrationError(f"{source}: lens is missing {e.args[0]}") from None
-            for k in ("working_distance_mm", "rms_reprojection_px", "u_fx_px", "grid_radius_px"):
+            if lens.get("grid_radius_px") is not None:
+                lk["grid_radius_px"] = _num(lens["grid_radius_px"], "lens.grid_radius_px", source)
+            for k in ("working_distance_mm", "rms_reprojection_px", "u_fx_px"):
                 if k in lens:
                     lk[k] = _num(lens[k], f"lens.{k}", source, allow_nan=True)
             dist = lens.get("dist", [0, 0, 0, 0, 0])

@@ -39,6 +39,11 @@ def register(subparsers) -> None:
     p.add_argument("--cal", required=True, metavar="FILE", help="calibration file (JSON)")
     p.add_argument("--spec", metavar="DESIGNATION",
                    help="thread designation, e.g. M6x1-6g, 1/4-20 UNC-2A, '3/16-40 ME'")
+    p.add_argument("--camera-label", metavar="TEXT",
+                   help="label of the camera that took IMAGE; a warning is given when it "
+                        "differs from the calibration's")
+    p.add_argument("--no-line-of-sight", action="store_true",
+                   help="skip the lens line-of-sight model (a naive reading, for comparison)")
     from ..report.outputs import add_output_arguments
 
     add_output_arguments(p)
@@ -59,7 +64,8 @@ def run(args) -> int:
         from ..standards import thread_spec
         spec = thread_spec(args.spec)
     img = load_image(args.image)
-    result = measure_thread(img, cal, spec=spec)
+    result = measure_thread(img, cal, spec=spec, line_of_sight=not args.no_line_of_sight,
+                            camera_label=args.camera_label)
     d = result.to_dict()
     d["image"] = args.image
     d["calibration"] = dict(d["calibration"], file=args.cal)

@@ -32,9 +32,11 @@ def _perturbed(line: LineFit, d_angle: float, d_offset: float):
 
 
 def _intersect(p1, d1, p2, d2) -> np.ndarray:
-    A = np.array([[d1[0], -d2[0]], [d1[1], -d2[1]]])
-    t = np.linalg.solve(A, p2 - p1)
-    return p1 + t[0] * d1
+    # p1 + t d1 = p2 + u d2, solved for t by Cramer's rule (2 x 2; callers reject parallels)
+    rx, ry = float(p2[0] - p1[0]), float(p2[1] - p1[1])
+    det = float(d2[0] * d1[1] - d1[0] * d2[1])
+    t = (d2[0] * ry - d2[1] * rx) / det
+    return np.array([p1[0] + t * d1[0], p1[1] + t * d1[1]])
 
 
 def intersect_lines(a: LineFit, b: LineFit) -> tuple[np.ndarray, np.ndarray]:

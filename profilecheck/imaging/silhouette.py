@@ -33,6 +33,14 @@ _REDUCED_LONG_SIDE = 128
 _EDGE_CLEAR_PX = 10.0
 
 
+def _all_finite(a: np.ndarray) -> bool:
+    """True when every value is finite: one summing pass (a NaN or inf makes the sum
+    non-finite), the element-wise test only when the sum overflows or is not finite."""
+    with np.errstate(over="ignore", invalid="ignore"):
+        total = np.sum(a)
+    return bool(np.isfinite(total)) or bool(np.all(np.isfinite(a)))
+
+
 def linearise(img, gamma: float) -> np.ndarray:
     """Undo a camera's gamma encoding: return ``img ** gamma``.
 
@@ -164,7 +172,7 @@ def flatten_backlight(img, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX)
         raise ValueError(f"img must be 2-D, got ndim={a.ndim}")
     if min(a.shape) < 8:
         raise ValueError(f"img must be at least 8 x 8 pixels, got {a.shape}")
-    if not np.all(np.isfinite(a)):
+    if not _all_finite(a):
         raise ValueError("img contains non-finite values")
     if not (isinstance(degree, (int, np.integer)) and 2 <= degree <= 6):
         raise ValueError(f"degree must be an int in 2..6, got {degree!r}")
@@ -226,10 +234,12 @@ def flatten_backlight(img, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX)
     bg_small = np.clip(bg_small, floor, None)
     bg = cv2.resize(bg_small, (cols, rows), interpolation=cv2.INTER_LINEAR) if f < 1 else bg_small
     denom = np.maximum(bg - dark_level, 1e-9)
-    flat = (a - dark_level) / denom
+    flat = a - dark_level
+    flat /= denom
     contrast = float(np.median(bg_small - dark_level))
     try:
-        otsu = float(threshold_otsu(cv2.resize(flat, small.shape[::-1], interpolation=cv2.INTER_AREA)
+        # on the reduced copy, flattened by the reduced background (information only)
+        otsu = float(threshold_otsu((small - dark_level) / np.maximum(bg_small - dark_level, 1e-9)
                                     if f < 1 else flat))
     except ValueError:
         otsu = 0.5

@@ -176,6 +176,7 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
                  root_drop_mm: float = 0.0, radiused_crest: bool = False,
                  radiused_root: bool = False, flank_shift: FlankShift | None = None,
                  arc_shift: ArcShift | None = None,
+                 root_hidden: Callable[[float, float], float] | None = None,
                  min_full_teeth: int = MIN_FULL_TEETH) -> LimbProfile:
     """Segment one thread edge into teeth and fit flanks, crests and roots.
 
@@ -196,6 +197,11 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         Helix / line-of-sight model: the image position of each flank point is moved back
         toward its tooth by ``flank_shift(x, y, side)`` before the line fit (NaN drops the
         point: its outline is not drawn by the flank).
+    root_hidden : callable or None
+        ``root_hidden(x_mm, level_mm) -> mm``: how far in from each end a flat root is
+        hidden from the line of sight by the flanks beside it (an inclined ray clears the
+        groove only near its middle); the level is fitted on the rest, and a root hidden
+        entirely is left out.
     arc_shift : callable or None
         Same model for points of rounded crests and roots (first order, from the local
         slope of a first circle fit).
@@ -330,7 +336,8 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         pitch, std_pitch, per_tooth, rms, aL, aR, xl, xr = _fit_pitch(flanks, mid, bad_teeth)
 
     crests, roots = _fit_flats(x, y, flanks, levels_arr, cross, sigma_e_mm, m_crest, m_root,
-                               radiused_crest, radiused_root, mid, pitch, arc_shift)
+                               radiused_crest, radiused_root, mid, pitch, arc_shift,
+                               root_hidden)
     # Chipped crest: crest level far below the others.
     if len(crests) >= 4:
         lv = np.array([c.level for c in crests])
@@ -443,7 +450,7 @@ def _fit_pitch(flanks: list[Flank], y_ref: float, exclude: set[int]):
 
 
 def _fit_flats(x, y, flanks, levels, cross, sigma_e, m_crest, m_root, radiused_crest,
-               radiused_root, mid, pitch, arc_shift=None):
+               radiused_root, mid, pitch, arc_shift=None, root_hidden=None):
     left = {f.index: f for f in flanks if f.side == "left"}
     right = {f.index: f for f in flanks if f.side == "right"}
     crests, roots = [], []
@@ -457,11 +464,12 @@ def _fit_flats(x, y, flanks, levels, cross, sigma_e, m_crest, m_root, radiused_c
                                     m_crest, radiused_crest, arc_shift))
         if i - 1 in right:
             roots.append(_one_flat("root", i - 1, x, y, right[i - 1], left[i], lo_all, sigma_e,
-                                   m_root, radiused_root, arc_shift))
+                                   m_root, radiused_root, arc_shift, root_hidden))
     return [c for c in crests if c is not None], [r for r in roots if r is not None]
 
 
-def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused, arc_shift=None):
+def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused, arc_shift=None,
+              hidden=None):
     """Flat between flank lines ``fa`` (at smaller x) and ``fb``; crest is above, root below."""
     sgn = 1.0 if kind == "crest" else -1.0
     # The flat lies between the two flanks' mid-height points; x is sorted, so slice.
@@ -498,8 +506,15 @@ def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused, arc_
         return Flat(kind, index, float(centre[0]), float(apex), float(std_r), float("nan"), float("nan"),
                     float(r_corr), float(std_r), int(sel.sum()))
     lo_x, hi_x = xa + 3 * sigma_e, xb - 3 * sigma_e
+    if hidden is not None and kind == "root":
+        cut = float(hidden(0.5 * (xa + xb), level0))
+        lo_x, hi_x = lo_x + cut, hi_x - cut
+        if hi_x - lo_x < 2 * sigma_e:
+            return None  # the whole floor is hidden behind the flanks
     near = sgn * (y - level0) > -(margin + 3 * sigma_e)
     sel = (x > lo_x) & (x < hi_x) & near
+    if sel.sum() < 3 and hidden is not None and kind == "root":
+        return None
     if sel.sum() < 3:
         c = 0.5 * (xa + xb)
         h = 0.25 * abs(xb - xa)

@@ -19,7 +19,7 @@ the axis, it passes closest to the axis at
 
 where a cylinder of radius ``rho = |(y, z)(t*)|`` would be tangent to it; the tangent point
 lies ``z* = Z (1 - t*)`` toward the camera, so its axial position is
-``x* = x_c + t* (X - x_c)``: the axial magnification 1/t* = 1 + ((Y - y_c)^2 + ...)/Z^2
+``x* = x_c + t* (X - x_c)``: the axial magnification 1/t* (1 + (Y/Z)^2 for y_c = 0)
 is the depth effect ``dM/M = -dZ/Z`` (vision-notes section 0, Sutton et al. 2008) and
 ``rho`` reproduces the cylinder formula ``D / sqrt(1 - (D/2Z)^2)`` of vision-notes section 4
 (y_c = 0: rho = Y / sqrt(1 + (Y/Z)^2)). Turned about the axis by the angle
@@ -34,11 +34,12 @@ stand ``a beta`` along the axis from those of the axial section (``a = h L / 2 p
 :mod:`.helix` Notes; sign s = +1 on the image-top edge, -1 on the bottom edge), so the
 point is referred to the axial section at ``x* - s a beta``.
 
-What is not modelled: a part axis out of the measurement plane or not square to the
-optical axis (the lens model holds the camera square to the plane, as the grid
-calibration found it), and the second-order coupling of the flank slope with the radial
-inclination (the closest approach stands for the true tangent point of a cone; the
-remainder is of order tan(beta) tan(gamma') / tan(theta) of the flank depth).
+Turning the ray into its own radial plane is exact, so with the parallel-view solution
+of :func:`profilecheck.measure.helix.flank_shift_mm` the result is exact for straight
+flanks: :func:`section_flank_x_mm` finds the same graze by a direct search along the
+perspective ray (tests/test_lens_thread_sight.py compares both, and both against a ray-cast
+render). Not modelled: a part axis out of the measurement plane or not square to the
+optical axis (the lens model holds the camera square to the plane).
 """
 
 from __future__ import annotations

@@ -1,4 +1,10 @@
-"""Limits of a thread spec against the measured values, and the infeed still to go."""
+"""Limits of a thread spec against the measured values, and the infeed still to go.
+
+Also whether the spec fits the part at all: the measured pitch against the spec's pitch
+(:func:`pitch_check`, part of :func:`thread_checks`) and the warnings of
+:func:`spec_warnings` (wrong pitch; an internal spec for a silhouette, which always shows
+an external thread).
+"""
 
 from __future__ import annotations
 
@@ -8,15 +14,85 @@ from typing import Any
 from ..quantity import Measured
 from ..verdict import Check, check_limits
 
-__all__ = ["thread_checks", "remaining_infeed"]
+__all__ = ["thread_checks", "pitch_check", "spec_warnings", "remaining_infeed",
+           "PITCH_TOL_FRAC"]
 
 _KEYS = ("major_diameter", "pitch_diameter", "minor_diameter")
 
+#: Tolerance on the measured pitch against the spec's pitch beyond its U, as a fraction of
+#: the pitch: 0.3 % (common practice, no source). Far above a lathe's lead error and the pitch
+#: uncertainty of a calibrated view (0.05 % scale), and below the 0.78 % between the two
+#: closest standard pitches that are confused in practice (M0.8 against 32 tpi = 0.79375
+#: mm; arithmetic), so a pitch outside it means the wrong spec or a wrong lead (change
+#: gears, quick-change box).
+PITCH_TOL_FRAC = 0.003
+
+
+def pitch_check(measurements: dict[str, Measured], spec: Any) -> Check | None:
+    """The measured pitch against the spec's pitch, or None (no pitch measured or in spec).
+
+    A consistency check, not a tolerance: the thread standards give the pitch no class
+    limit of its own (a pitch error is taken up in the pitch diameter's functional size,
+    ISO 965-1 / ASME B1.1). 'fail' when ``|pitch - P| > U + PITCH_TOL_FRAC * P`` (the spec
+    does not fit the part: wrong spec or a wrong lead), otherwise 'pass'; never
+    'undecided', so the row cannot hold back the verdict of a part that fits its spec. The
+    row's limits are ``P +/- PITCH_TOL_FRAC * P``.
+    """
+    p_spec = getattr(spec, "pitch_mm", None)
+    if "pitch" not in measurements or p_spec is None or not float(p_spec) > 0:
+        return None
+    p_spec = float(p_spec)
+    m = measurements["pitch"]
+    tol = PITCH_TOL_FRAC * p_spec
+    u = float(m.u) if math.isfinite(m.u) else 0.0
+    result = "fail" if abs(m.value - p_spec) > u + tol else "pass"
+    name = getattr(spec, "designation", "the spec")
+    return Check("pitch", float(m.value), float(m.u), p_spec - tol, p_spec + tol, "mm", result,
+                 f"{name} pitch {p_spec:.4g} mm; fails beyond U + {100 * PITCH_TOL_FRAC:g} % "
+                 "(common practice, no source): the wrong spec or a wrong lead")
+
+
+def spec_warnings(measurements: dict[str, Measured], spec: Any, *,
+                  external_view: bool = True) -> tuple[str, ...]:
+    """Plain warnings when the spec does not fit the part in the image.
+
+    Parameters
+    ----------
+    measurements : dict of Measured
+        The thread's measured values (``pitch`` in mm used).
+    spec : ThreadSpec
+        The spec the part is checked against.
+    external_view : bool
+        The outline is an external thread. A backlit silhouette of a threaded bar always
+        is; it is also what a cast taken from a nut shows.
+
+    Returns
+    -------
+    tuple of str
+        One line per misfit found; empty when the spec fits.
+    """
+    out = []
+    chk = pitch_check(measurements, spec)
+    name = getattr(spec, "designation", "the spec")
+    if chk is not None and chk.result == "fail":
+        out.append(f"measured pitch {chk.value:.4f} mm does not match the "
+                   f"{float(spec.pitch_mm):.4g} mm of {name}: wrong spec, or the thread was "
+                   "cut with the wrong lead; the diameter checks do not apply")
+    if external_view and not bool(getattr(spec, "external", True)):
+        out.append(f"{name} is an internal thread (nut) but the image shows an external thread "
+                   "(a silhouette of a bar): check against the external class (e.g. 6g, 2A), "
+                   "unless this is a cast taken from the nut")
+    return tuple(out)
+
 
 def thread_checks(measurements: dict[str, Measured], spec: Any) -> tuple[Check, ...]:
-    """One :func:`check_limits` per spec limit that has a measured value (mm)."""
+    """The pitch against the spec (:func:`pitch_check`), then one :func:`check_limits` per
+    spec limit that has a measured value (mm)."""
     limits = getattr(spec, "limits", None) or {}
     out = []
+    pc = pitch_check(measurements, spec)
+    if pc is not None:
+        out.append(pc)
     for key in _KEYS:
         if key in limits and key in measurements:
             lim = limits[key]

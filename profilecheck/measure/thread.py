@@ -8,18 +8,30 @@ Pipeline (see docs/conventions.md for frames and signs):
    widths, ``+2 b`` on grooves follows from that);
 2. the axis: principal direction of the edge points, refined until the fitted crest and
    root levels run parallel to it; with both edges in view the axis is their midline;
-3. each edge is segmented into teeth and fitted (:mod:`._thread_profile`) once as seen and
-   once with the helix correction (:mod:`.helix`) applied to every flank point;
-4. values are combined over teeth and edges, each with its expanded uncertainty (k = 2):
+3. with a lens and both edges in view, every outline point is followed along its own
+   line of sight (:mod:`._thread_sight`): moved from where its ray crosses the measurement
+   plane to where the ray grazes the part (cylinder perspective of the rims and the depth
+   of each point, ``dM/M = -dZ/Z``), and given the ray's inclination toward the axis;
+4. each edge is segmented into teeth and fitted (:mod:`._thread_profile`) once as seen and
+   once with the helix correction (:mod:`.helix`) applied to every flank point, with that
+   point's inclination (0 for a telecentric view); off-centre, flank points whose ray grazes
+   the helicoid beyond the crest or root are dropped (the crest or root edge draws them);
+5. values are combined over teeth and edges, each with its expanded uncertainty (k = 2):
    fit and tooth-to-tooth scatter, the calibration's scale (relative, on every length) and
    edge offset (on widths and diameters), and a model term of 10 % of the helix correction
    (rectangular);
-5. against a spec: ISO 14253-1 checks, the infeed still to go, the tolerance envelope.
+6. against a spec: ISO 14253-1 checks, the infeed still to go, the tolerance envelope.
 
-Known gaps (stated in every report): with a lens, only the axial tilt of each flank's line
-of sight is modelled (vision-notes section 5); the radial perspective of off-plane contour
-points is left to the calibration (calibrate with a pin of about the thread's size); the
-cylinder rim correction ``cylinder_axial_diameter_mm`` is applied to all three diameters.
+Without a lens in the calibration (gauge only) the view is taken as telecentric and every
+report says so.
+
+Known gaps: with a lens but only one edge in view the axis (and so each ray's geometry) is
+unknown and the points are read as a parallel view (a warning says so); the part's axis is
+assumed in the measurement plane and square to the optical axis; off-centre the crests
+hide the ends of flat roots from the inclined rays (those ends are left out, and a root
+hidden entirely gives no level), but rounded roots get no such treatment; the 10 % helix
+model term is kept with a lens although the renders show
+the per-point model to within 0.1 um (it makes U(PD) about 15-18 um).
 """
 
 from __future__ import annotations
@@ -144,7 +156,8 @@ def _tilt_of(limb: tp.LimbProfile) -> float:
 
 
 def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
-                   roi: Any = None, line_of_sight: bool = True) -> ThreadResult:
+                   roi: Any = None, line_of_sight: bool = True,
+                   camera_label: str | None = None) -> ThreadResult:
     """Measure a screw thread from a backlit silhouette.
 
     Parameters
@@ -163,6 +176,9 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
         With a lens in the calibration: True (default) follows each outline point's own
         ray (:mod:`._thread_sight` then :mod:`.helix`); False only undistorts the points
         and reads them as a parallel view (for comparison: the naive reading).
+    camera_label : str, optional
+        Label of the camera that took the picture; a warning is given when it differs
+        from the calibration's label.
 
     Returns
     -------
@@ -198,6 +214,7 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
     from ..imaging import find_edges
 
     warnings: list[str] = []
+    _check_label(calibration, camera_label, warnings)
     edges = find_edges(img, roi=roi, gamma=calibration.gamma)
     warnings.extend(str(w) for w in getattr(edges, "warnings", ()))
     sigma_e_px = _edge_quality(edges, calibration, warnings)
@@ -210,6 +227,7 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
     lens = calibration.lens
     if lens is not None:
         from ..calibration.lens import undistort_points
+        _grid_reach(xy_raw, lens, warnings)
         xy_raw = undistort_points(xy_raw, lens)
     b_px = -0.5 * calibration.width_correction_px()
     xy = xy_raw - b_px * normal  # each edge point back onto the true boundary
@@ -249,12 +267,23 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
             raw[name] = tp.analyse_limb(_limb_xy(sr, m, name == "top", 0.0), sigma_e_mm=sigma_e,
                                         **_drops(form, raw[name]))
     both = len(raw) == 2
-    sight = _sight_model(calibration, frame) if (line_of_sight and both) else None
+    # With one edge the axis lies half the spec's pitch diameter inside its pitch line.
+    axis_y = 0.0
+    if not both and spec is not None:
+        name1 = "top" if "top" in raw else "bottom"
+        off1 = 0.5 * spec.pitch_diameter_mm - raw[name1].pitch_line_y
+        axis_y = -off1 if name1 == "top" else off1
+    sight = (_sight_model(calibration, frame, axis_y)
+             if (line_of_sight and (both or spec is not None)) else None)
     if sight is not None:
         from ._thread_sight import refer_to_axial_section
         lead0 = (spec.lead_mm if spec is not None
                  else float(np.mean([limb.pitch for limb in raw.values()])))
         rh0 = not bool(getattr(spec, "left_hand", False)) if spec is not None else True
+        sr = sr - np.array([0.0, axis_y])  # measured from the axis
+        if axis_y:
+            o_ax = np.asarray(frame.o) + axis_y / scale * np.asarray(frame.n_up)
+            frame = AxisFrame((float(o_ax[0]), float(o_ax[1])), frame.u)
         plane_sr = sr
         sr, tan_gamma = refer_to_axial_section(sr, sight, lead_mm=lead0, right_hand=rh0)
         for name, m in (("top", top_m), ("bottom", bot_m)):
@@ -263,17 +292,25 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
                                             sigma_e_mm=sigma_e, **_drops(form, raw[name]))
         sight = (sight, plane_sr, tan_gamma)
     elif calibration.lens is not None and line_of_sight:
-        warnings.append("lens model: one edge in view, so the axis (and each point's line "
-                        "of sight) is not known: read as a parallel view; get both edges "
-                        "in view for the full lens model")
+        # one edge: the axis is not known, so only each ray's inclination along the axis
+        # (tan gamma = (x - x_principal) / f along the axis direction) is used
+        lz = calibration.lens
+        u = np.asarray(frame.u)
+        tg = ((xy[:, 0] - lz.cx_px) / lz.fx_px * u[0] + (xy[:, 1] - lz.cy_px) / lz.fy_px * u[1])
+        sight = (None, None, tg)
+        warnings.append("lens model: one edge in view and no spec, so the axis is not "
+                        "known: only the tilt of each line of sight along the axis is "
+                        "corrected, not the perspective; give the spec or get both edges in "
+                        "view for the full model")
     elif calibration.lens is not None:
         warnings.append("lens model: distortion removed but lines of sight not followed "
                         "(parallel view assumed); diameters and flanks read large off-centre")
 
     helix, fitted = _helix_pass(raw, sr, top_m, bot_m, frame, spec, calibration, sigma_e, form,
                                 both, warnings, sight)
-    helix["line_of_sight"] = ("per point (perspective referred to the axial section)"
-                              if sight is not None else "parallel view assumed")
+    helix["line_of_sight"] = ("parallel view assumed" if sight is None
+                              else "per point (perspective referred to the axial section)"
+                              if sight[0] is not None else "axial tilt per point only")
     from ._thread_values import assemble
     meas, per_tooth, notes = assemble(fitted, raw, spec, calibration, helix, both, sigma_e)
     if calibration.lens is None:
@@ -332,15 +369,42 @@ def _drops(form: dict[str, Any], prev: tp.LimbProfile | None) -> dict[str, Any]:
             "radiused_crest": form["radiused_crest"], "radiused_root": form["radiused_root"]}
 
 
-def _sight_model(cal: Calibration, frame: AxisFrame):
-    """Projection centre in the axis frame (mm), or None without a usable lens."""
+def _grid_reach(xy_px: np.ndarray, lens: Any, warnings: list[str]) -> None:
+    """Warn when outline points lie farther from the principal point than any grid corner
+    did (the distortion there is extrapolated from the fitted polynomial)."""
+    reach = getattr(lens, "grid_radius_px", None)
+    if reach is None or not (math.isfinite(reach) and reach > 0) or len(xy_px) == 0:
+        return
+    r = np.hypot(xy_px[:, 0] - lens.cx_px, xy_px[:, 1] - lens.cy_px)
+    frac = float(np.mean(r > reach))
+    if frac > 0.0:
+        warnings.append(f"{100 * frac:.0f} % of the outline lies farther out in the picture than "
+                        "the calibration grid reached: the lens distortion there is "
+                        "extrapolated; move the part toward the centre or recalibrate with the "
+                        "grid filling the corners")
+
+
+def _check_label(cal: Calibration, camera_label: Any, warnings: list[str]) -> None:
+    if camera_label is None:
+        return
+    if not isinstance(camera_label, str):
+        raise TypeError(f"camera_label must be a string or None, got {type(camera_label).__name__}")
+    if camera_label and cal.label and camera_label.strip() != cal.label.strip():
+        warnings.append(f"the picture is from camera '{camera_label}' but the calibration is for "
+                        f"'{cal.label}': use that camera's calibration")
+
+
+def _sight_model(cal: Calibration, frame: AxisFrame, axis_y_mm: float = 0.0):
+    """Projection centre in the axis frame (mm; the axis at ``axis_y_mm`` in the frame's
+    radial coordinate), or None without a usable lens."""
     lens = cal.lens
     if lens is None or not (math.isfinite(lens.working_distance_mm)
                             and lens.working_distance_mm > 0):
         return None
     from ._thread_sight import SightModel
     foot = frame.to_axis(np.array([[lens.cx_px, lens.cy_px]]))[0] * cal.mm_per_px
-    return SightModel(float(foot[0]), float(foot[1]), float(lens.working_distance_mm))
+    return SightModel(float(foot[0]), float(foot[1]) - axis_y_mm,
+                      float(lens.working_distance_mm))
 
 
 def _index_lookup(xy_l: np.ndarray):
@@ -358,7 +422,7 @@ def _index_lookup(xy_l: np.ndarray):
 def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, warnings,
                 sight_pts=None):
     """``sight_pts``: None (parallel view) or ``(sight, plane_sr_mm, tan_gamma)`` per outline
-    point (:mod:`._thread_sight`)."""
+    point (:mod:`._thread_sight`; ``sight`` and ``plane_sr_mm`` None with one edge only)."""
     """Refit each edge with the helix correction; return (helix dict, fitted limbs)."""
     pitch_seen = float(np.mean([limb.pitch for limb in raw.values()]))
     lead = spec.lead_mm if spec is not None else pitch_seen
@@ -399,10 +463,10 @@ def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, wa
         span = None
         if lens is not None and limb0.crests and limb0.roots:
             dr = _drops(form, limb0)
-            span = (float(np.mean([f.level for f in limb0.roots])) + dr["root_drop_mm"]
+            span = (float(np.mean([f.level for f in limb0.roots])) + off + dr["root_drop_mm"]
                     + 3.0 * sigma_e,
-                    float(np.mean([f.level for f in limb0.crests])) - dr["crest_drop_mm"]
-                    - 3.0 * sigma_e)
+                    float(np.mean([f.level for f in limb0.crests])) + off - dr["crest_drop_mm"]
+                    - 3.0 * sigma_e)  # radii, as rad = y + off below
         limb_th = limb0
         for _ in range(2 if lens is not None else 1):
             theta = {s: min(max(limb_th.mean_angle(s)[0], math.radians(5)), math.radians(45))
@@ -429,8 +493,23 @@ def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, wa
                 return profile_shift_mm(rad, slope, lead, tan_gamma=_tg(x, y),
                                         right_hand=right_hand, top_edge=_top)
 
+            def root_hidden(x, level, _top=top, _off=off, _theta=theta, _look=look,
+                            _tg=tg_l):
+                # A ray grazing the root floor drifts along the groove by k z' at depth z'
+                # (k = a_eff / rho, a_eff = h L / 2 pi + s tan(gamma) rho, helix.py) while
+                # the groove widens by tan(theta) z'^2 / (2 rho): it clears both flanks only
+                # within k^2 rho / (2 tan theta) less than the half-floor (derived here).
+                rho = max(level + _off, 1e-6)
+                i = int(_look(np.array([x]), np.array([level]))[0])
+                a_eff = ((1.0 if right_hand else -1.0) * lead / (2 * math.pi)
+                         + (1.0 if _top else -1.0) * float(_tg[i]) * rho)
+                th = float(np.mean(list(_theta.values()))) if _theta else math.radians(30)
+                return (a_eff / rho) ** 2 * rho / (2.0 * math.tan(th))
+
             limb_th = tp.analyse_limb(xy_l, sigma_e_mm=sigma_e, flank_shift=shift,
-                                      arc_shift=arc_shift, **_drops(form, limb0))
+                                      arc_shift=arc_shift,
+                                      root_hidden=root_hidden if look is not None else None,
+                                      **_drops(form, limb0))
         fitted[name] = limb_th
     psi = lead_angle_rad(lead, d2)
     helix = {"applied": True, "model": model, "lead_mm": lead, "right_hand": right_hand,

@@ -39,6 +39,7 @@ from ..quantity import Measured
 from ..verdict import check_limits
 from . import _runs
 from ._job_result import JobResult, check_roi, edge_points, load_input, make_result, std_points
+from ._tool_point import MAX_TOOL_INCLUDED_DEG, choose_point
 from ._tool_tip import TipForm, fit_tip
 
 __all__ = ["ToolResult", "SquarenessResult", "measure_tool", "measure_squareness",
@@ -109,7 +110,8 @@ def _find_point(img, calibration, roi):
     runs = _runs.straight_runs(xy, edges.normal, edges.contour, weights=1.0 / std ** 2,
                                min_length_px=max(15.0, 12 * sigma_e),
                                trim_px=3 * sigma_e + 2.0)
-    wedges = _runs.find_wedges(runs, min_included_deg=15.0, max_included_deg=100.0)
+    wedges = _runs.find_wedges(runs, min_included_deg=15.0,
+                                max_included_deg=MAX_TOOL_INCLUDED_DEG)
     return edges, xy, sigma_e, std, runs, wedges, warnings
 
 
@@ -217,8 +219,10 @@ def measure_tool(image, calibration, *, spec=None, internal: bool = False,
     Edges are split into straight runs; every corner and the tip are left out of the runs
     (the 50 % contour of a blurred 60 deg point recedes 1.29 sigma, vision-notes 1.2), lines
     are fitted by total least squares and the point is the intersection of the two flank
-    lines. Angle uncertainties come from the line fits (JCGM 100:2008 5.1.2, fits
-    independent); lengths add the scale and edge-offset terms of the calibration. The tip
+    lines. Of the points in view, corners on a shank side (square shoulders) and corners
+    wider than 85 deg are never the tool's point; with a spec, points near the form's
+    angle come first (:mod:`profilecheck.measure._tool_point`). Angle uncertainties come
+    from the line fits (JCGM 100:2008 5.1.2, fits independent); lengths add the scale and edge-offset terms of the calibration. The tip
     model (flat or radius) is chosen from the data, see :mod:`profilecheck.measure._tool_tip`.
     Known gap: the uncertainty holds no term for a tool face that is not square to the line
     of sight (a tilted face foreshortens angles by the cosine of the tilt).
@@ -227,10 +231,11 @@ def measure_tool(image, calibration, *, spec=None, internal: bool = False,
     img, label = load_input(image)
     calibration.check_image(img.shape)
     edges, xy, sigma_e, std, runs, wedges, warnings = _find_point(img, calibration, roi)
-    if not wedges:
+    form_angle = float(spec.included_angle_deg) if spec is not None else None
+    wedge = choose_point(wedges, runs, form_angle_deg=form_angle)
+    if wedge is None:
         raise MeasurementError("no tool point found: the image shows no pair of straight "
                                "flanks meeting at a point (is the tool's point in the frame?)")
-    wedge = wedges[0]
     axis, std_axis, reference, shank_lines = _shank(runs, wedge)
     warnings = list(warnings)
     notes = []
