@@ -320,13 +320,18 @@ def fit_steps(y, mask, direction, t, x0, s0, *, max_iter: int = 40,
                 ia, pa, pn, step = ia[keep], pa[keep], pn[keep], step[keep]
                 if len(ia) == 0:
                     break
-        Sn, dSun, dSsn = _profile_model(pn[:, 0:1], pn[:, 3:4], tt[ia], dr[ia], W)
-        rn = (y[ia] - (pn[:, 1:2] + pn[:, 2:3] * Sn)) * m[ia]
+        full = len(ia) == N
+        Sn, dSun, dSsn = _profile_model(pn[:, 0:1], pn[:, 3:4], tt if full else tt[ia],
+                                        dr if full else dr[ia], W)
+        rn = ((y if full else y[ia]) - (pn[:, 1:2] + pn[:, 2:3] * Sn)) * (m if full else m[ia])
         cn = (rn * rn).sum(1)
         better = cn <= cost[ia]
         ib = ia[better]
-        p[ib] = pn[better]
-        r[ib], S[ib], dSu[ib], dSs[ib] = rn[better], Sn[better], dSun[better], dSsn[better]
+        if full and better.all():      # the first iterations: no scattering needed
+            p, r, S, dSu, dSs = pn, rn, Sn, dSun, dSsn
+        else:
+            p[ib] = pn[better]
+            r[ib], S[ib], dSu[ib], dSs[ib] = rn[better], Sn[better], dSun[better], dSsn[better]
         # converged when the edge position and blur stop moving; a blur pinned at its lower
         # clamp (an edge sharper than the pixel can show) counts as settled. Gauss-Newton
         # steps shrink at least linearly, by a factor of about noise / contrast (measured

@@ -32,7 +32,8 @@ import numpy as np
 from ..errors import MeasurementError, QualityError
 from ._lines import FlankLine, fit_circle_lsq, fit_flank_line, fit_level
 
-__all__ = ["Flank", "Flat", "LimbProfile", "analyse_limb", "find_crossings", "MIN_FULL_TEETH"]
+__all__ = ["Flank", "Flat", "LimbProfile", "analyse_limb", "find_crossings", "flat_sag",
+           "MIN_FULL_TEETH"]
 
 #: Fewest complete teeth (left flank, crest, right flank) a thread measurement rests on.
 MIN_FULL_TEETH = 3
@@ -528,3 +529,71 @@ def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused, arc_
                       + (dk * std_lev) ** 2)
     xm = 0.5 * float(fb.line.x_at(lev) + fa.line.x_at(lev))
     return Flat(kind, index, xm, lev, std_lev, w, std_w, float("nan"), float("nan"), int(sel.sum()))
+
+
+def flat_sag(xy_mm: np.ndarray, limb: LimbProfile, sigma_e_mm: float,
+             kind: str = "root") -> tuple[float, float, float]:
+    """Evidence of a rounded crest or root: mean sag of the floor between the flank lines.
+
+    On each crest (or root) of ``limb`` the outline points lying inside the tooth (or
+    groove) and at least ``3 sigma_e`` from both flank lines (clear of the blurred corners,
+    vision-notes section 1.2) are fitted by a parabola ``y = a + b x + c x^2``; its sag over
+    that span, ``|c| w^2 / 4`` toward the material, is 0 on a flat and ``w^2 / (8 R)`` on an
+    arc of radius R (analytic geometry).
+
+    Returns
+    -------
+    (sag_mm, std_sag_mm, radius_mm)
+        Mean sag over the flats (positive: bulging as an arc tangent to the flanks would),
+        its standard error (larger of fit and spread), and the radius of the arc tangent to
+        both flank lines through the fitted bottom, ``R = t sin(theta) / (1 - sin(theta))``
+        with ``t`` the distance from the sharp-V apex (NaN when nothing could be fitted).
+    """
+    sgn = 1.0 if kind == "crest" else -1.0
+    xy = np.asarray(xy_mm, dtype=float)
+    order = np.argsort(xy[:, 0], kind="stable")
+    x, y = xy[order, 0], xy[order, 1]
+    left = {f.index: f for f in limb.side("left")}
+    right = {f.index: f for f in limb.side("right")}
+    flats = limb.crests if kind == "crest" else limb.roots
+    sags, stds, radii = [], [], []
+    for fl in flats:
+        fa, fb = ((left.get(fl.index), right.get(fl.index)) if kind == "crest"
+                  else (right.get(fl.index), left.get(fl.index + 1)))
+        if fa is None or fb is None:
+            continue
+        dk = fb.line.k - fa.line.k
+        if abs(dk) < 1e-9:
+            continue
+        # sharp-V apex: where the two flank lines meet
+        y_v = (fb.line.x_ref - fb.line.k * fb.line.y_ref
+               - fa.line.x_ref + fa.line.k * fa.line.y_ref) / (fa.line.k - fb.line.k)
+        th = 0.5 * (abs(math.atan(fa.line.k)) + abs(math.atan(fb.line.k)))
+        gap = 3.0 * sigma_e_mm / max(math.cos(th), 0.1)
+        lo_x, hi_x = sorted((float(fa.line.x_ref), float(fb.line.x_ref)))
+        i0, i1 = np.searchsorted(x, [lo_x, hi_x])
+        px, py = x[i0:i1], y[i0:i1]
+        xa, xb = fa.line.x_at(py), fb.line.x_at(py)
+        inside = ((px > np.minimum(xa, xb) + gap) & (px < np.maximum(xa, xb) - gap)
+                  & (sgn * (py - fl.level) > -(0.5 * abs(fl.level - y_v) + 3 * sigma_e_mm)))
+        if inside.sum() < 6:
+            continue
+        u, v = px[inside], py[inside]
+        xm = 0.5 * (u.min() + u.max())
+        a = np.column_stack([np.ones(len(u)), u - xm, (u - xm) ** 2])
+        sol, *_ = np.linalg.lstsq(a, v, rcond=None)
+        res = v - a @ sol
+        s2 = float(res @ res) / max(len(u) - 3, 1)
+        try:
+            std_c = math.sqrt(max(float(np.linalg.inv(a.T @ a)[2, 2]) * s2, 0.0))
+        except np.linalg.LinAlgError:
+            continue
+        w2 = 0.25 * float(np.ptp(u)) ** 2
+        sags.append(-sgn * float(sol[2]) * w2)
+        stds.append(std_c * w2)
+        t = abs(float(fl.level) - y_v)
+        radii.append(t * math.sin(th) / (1.0 - math.sin(th)))
+    if not sags:
+        return float("nan"), float("nan"), float("nan")
+    s_arr, e_arr = np.array(sags), np.array(stds)
+    return float(s_arr.mean()), _mean_std(s_arr, e_arr), float(np.median(radii))

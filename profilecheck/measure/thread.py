@@ -49,7 +49,7 @@ from . import _thread_profile as tp
 from ._thread_axis import AxisFrame, initial_axis, split_edges
 from ._thread_overlays import build_overlays
 from ._thread_result import ThreadResult
-from ._thread_verdict import remaining_infeed, thread_checks
+from ._thread_verdict import remaining_infeed, spec_warnings, thread_checks
 from .helix import flank_contact_radius_mm, flank_shift_mm, lead_angle_rad, profile_shift_mm
 
 __all__ = ["measure_thread", "ThreadResult"]
@@ -266,6 +266,16 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
         if m is not None:
             raw[name] = tp.analyse_limb(_limb_xy(sr, m, name == "top", 0.0), sigma_e_mm=sigma_e,
                                         **_drops(form, raw[name]))
+    # Flat or rounded crest and root: decided from the outline (the spec may allow either).
+    shaped = _form_from_data(form, raw, {n: _limb_xy(sr, m, n == "top", 0.0)
+                                         for n, m in (("top", top_m), ("bottom", bot_m))
+                                         if m is not None}, sigma_e)
+    if shaped != form:
+        form = shaped
+        for name, m in (("top", top_m), ("bottom", bot_m)):
+            if m is not None:
+                raw[name] = tp.analyse_limb(_limb_xy(sr, m, name == "top", 0.0),
+                                            sigma_e_mm=sigma_e, **_drops(form, raw[name]))
     both = len(raw) == 2
     # With one edge the axis lies half the spec's pitch diameter inside its pitch line.
     axis_y = 0.0
@@ -320,8 +330,10 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
     for limb in fitted.values():
         warnings.extend(limb.warnings)
     checks = thread_checks(meas, spec) if spec is not None else ()
-    if spec is not None and not checks:
-        warnings.append("no limits could be checked: the spec has no class limits, or only one "
+    if spec is not None:
+        warnings.extend(spec_warnings(meas, spec))
+    if spec is not None and not any(c.name != "pitch" for c in checks):
+        warnings.append("no diameter limits could be checked: the spec has no class limits, or only one "
                         "edge is in view (diameters need both edges)")
     infeed = (remaining_infeed(meas["pitch_diameter"], spec)
               if spec is not None and "pitch_diameter" in meas else None)
@@ -351,6 +363,46 @@ def _form(spec: Any) -> dict[str, Any]:
             "crest_drop": rc * (1 - math.sin(th)), "root_drop": rr * (1 - math.sin(th))}
 
 
+#: A crest or root is read as an arc when its floor sags toward the material by more than
+#: this many standard errors and by more than ``SAG_MIN_SIGMA`` of the edge blur sigma_e
+#: (renders: flat floors give 0 +/- 0.4 um, H/6 roots 3-4 um; common practice, no source).
+SAG_T = 4.0
+SAG_MIN_SIGMA = 0.1
+
+
+def _form_from_data(form: dict[str, Any], raw: dict[str, tp.LimbProfile],
+                    xy_limbs: dict[str, np.ndarray], sigma_e: float) -> dict[str, Any]:
+    """Flat or radiused crest / root from the outline itself (:func:`._thread_profile.flat_sag`).
+
+    A form the spec gives as radiused stays radiused. Where the spec gives a flat (ISO 965-1
+    clause 11 allows external roots flat or rounded, R >= 0.125 P) or there is no spec,
+    a floor that sags as an arc is fitted as one; the corner drop for the flank band is
+    then ``R (1 - sin theta)`` of the arc tangent to both flanks through the bottom.
+    """
+    out = dict(form)
+    for kind in ("crest", "root"):
+        if form[f"radiused_{kind}"]:
+            continue
+        sags, stds, radii = [], [], []
+        for name, limb in raw.items():
+            sg, sd, r = tp.flat_sag(xy_limbs[name], limb, sigma_e, kind)
+            if math.isfinite(sg) and math.isfinite(sd):
+                sags.append(sg)
+                stds.append(sd)
+                radii.append(r)
+        if not sags:
+            continue
+        sag = float(np.mean(sags))
+        std = math.sqrt(float(np.sum(np.square(stds)))) / len(stds)
+        if sag > SAG_T * std and sag > SAG_MIN_SIGMA * sigma_e and math.isfinite(radii[0]):
+            th = 0.5 * np.mean([limb.mean_angle(s)[0] for limb in raw.values()
+                                for s in ("left", "right") if limb.side(s)])
+            out[f"radiused_{kind}"] = True
+            out[f"{kind}_drop"] = float(np.median(radii)) * (1.0 - math.sin(th))
+            out[f"{kind}_from_data"] = True
+    return out
+
+
 def _drops(form: dict[str, Any], prev: tp.LimbProfile | None) -> dict[str, Any]:
     """Keyword arguments of analyse_limb for the corner exclusion.
 
@@ -359,12 +411,13 @@ def _drops(form: dict[str, Any], prev: tp.LimbProfile | None) -> dict[str, Any]:
     ``3 sigma_e`` blur margin applies).
     """
     cd, rd = form["crest_drop"], form["root_drop"]
-    if cd is None:
+    if cd is None or rd is None:
         depth = 0.0
         if prev is not None and prev.crests and prev.roots:
             depth = (np.mean([c.level for c in prev.crests])
                      - np.mean([r.level for r in prev.roots]))
-        cd = rd = 0.08 * depth
+        cd = 0.08 * depth if cd is None else cd
+        rd = 0.08 * depth if rd is None else rd
     return {"crest_drop_mm": float(cd), "root_drop_mm": float(rd),
             "radiused_crest": form["radiused_crest"], "radiused_root": form["radiused_root"]}
 
