@@ -91,7 +91,8 @@ def main(argv=None) -> int:
                 t, tr, e = timed(lambda kw=kw: find_edges(a, **kw), repeats, ref)
                 print(f"  {name:16s} {label:20s} {t * 1e3:7.1f} ms  {len(e):5d} points  "
                       f"{t / max(len(e), 1) * 1e6:5.1f} us/point  median std "
-                      f"{np.median(e.std_px):.4f} px  ratio {t / tr:5.1f} x (ref {tr * 1e3:.1f} ms)")
+                      f"{np.median(e.std_px):.4f} px  ratio {t / tr:5.1f} x "
+                      f"(ref {tr * 1e3:.1f} ms)")
     return 0
 
 

@@ -105,7 +105,8 @@ def _halfplane(shape, point, normal_deg, sigma_b, sigma_n, rng):
     acc = np.zeros(shape)
     for u, wu in zip(xg / 2, wg / 2):
         for v, wv in zip(xg / 2, wg / 2):
-            acc += wu * wv * ndtr(((xx + u - point[0]) * n[0] + (yy + v - point[1]) * n[1]) / sigma_b)
+            d = (xx + u - point[0]) * n[0] + (yy + v - point[1]) * n[1]
+            acc += wu * wv * ndtr(d / sigma_b)
     img = (30 + 190 * acc + rng.normal(0, sigma_n, shape)) / 255.0
     return np.clip(img, 0, 1), n
 

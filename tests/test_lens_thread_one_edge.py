@@ -49,7 +49,14 @@ def test_one_edge_with_spec_meets_targets(one_edge):
 def test_one_edge_without_spec_warns(one_edge):
     img, cal = one_edge
     r = measure_thread(img, cal)
-    # no spec: the radius (so the helix and the axis) is unknown, and the report says so
-    assert r.helix["applied"] is False
+    # no spec: the radius (so the helix and the axis) is unknown, and the report says so;
+    # the helix correction is only bounded (half applied, half in U)
+    assert r.helix["bounded"] is True
     assert any("one edge in view and no spec" in w for w in r.warnings)
     assert any("diameter is unknown" in w for w in r.warnings)
+    m = r.measurements
+    # ISO 68-1 basic profile: flanks 30 deg, crest flat P/8, root flat P/4 (P = 1 mm);
+    # the stated U must cover the error of the bounded correction
+    for key, truth in (("flank_left", 30.0), ("flank_right", 30.0), ("crest_flat", 0.125),
+                       ("root_flat", 0.25)):
+        assert abs(m[key].value - truth) <= m[key].u, key

@@ -379,13 +379,12 @@ def _polish(p, A, g, sel, cost) -> None:
     gi[hold, 3] = 0.0
     d = np.sqrt(np.maximum(np.einsum("nii->ni", Ai), 1e-300))
     try:
-        step = np.linalg.solve(Ai / d[:, :, None] / d[:, None, :], (gi / d)[:, :, None])[:, :, 0] / d
+        As = Ai / d[:, :, None] / d[:, None, :]       # Jacobi scaling
+        step = np.linalg.solve(As, (gi / d)[:, :, None])[:, :, 0] / d
     except np.linalg.LinAlgError:
         return
     ok = np.all(np.isfinite(step), axis=1) & (np.abs(step[:, 0]) < 10 * _TOL_X0) & (
         np.abs(step[:, 3]) < 10 * _TOL_S)
-    hold_low = ok & hold & (step[:, 3] < 0)
-    step[hold_low, 3] = 0.0
     pn = p[ii[ok]] + step[ok]
     pn[:, 3] = np.clip(pn[:, 3], _S_MIN, 50.0)
     p[ii[ok]] = pn

@@ -19,7 +19,8 @@ class ThreadResult:
     ----------
     measurements : dict of str to Measured
         ``pitch``, ``flank_left``, ``flank_right``, ``included_angle``, ``crest_flat`` and
-        ``root_flat`` (or ``crest_radius`` and ``root_radius`` for radiused forms),
+        ``root_flat`` (or ``crest_radius`` / ``root_radius`` where the spec's form is
+        radiused or the outline shows an arc: the form is decided from the data),
         ``depth``; with both edges in view also ``major_diameter``, ``minor_diameter``,
         ``pitch_diameter`` and ``over_wire`` (virtual reading over best-size wires).
         Lengths mm, angles deg, ``u`` expanded (k = 2). Axial-section values: the helix

@@ -9,7 +9,10 @@ Budget per value (GUM 5.1.2, independent terms in quadrature, then U = 2 u_c):
   (diameters 2, flats 2 (1 - sin theta)/cos theta, pitch diameter and wires 2/sin theta,
   radii 1; pitch, angles and depth are immune: same-polarity);
 * helix model: 10 % of the correction applied, rectangular (50 % for the first-order
-  correction of rounded crests and roots);
+  correction of rounded crests and roots); with one edge and no spec (``helix['bounded']``)
+  the correction computed for the smallest usual diameter is an upper bound, the true one
+  lies between 0 and it: half is applied and half of it is a rectangular term
+  (GUM 4.3.7, a = |correction| / 2);
 * edge model: 0.02 px per edge position (standard), the residual that subpixel edge
   locators reach at best on straight edges (vision-notes section 0: 0.01-0.05 px), on
   every length resting on two or more edge positions;
@@ -62,6 +65,18 @@ def _pool_flats(limbs, kind, attr):
     return float(v.mean()), max(fit, spread), len(v), int(sum(f.n for f in fl))
 
 
+def _helix_term(value: float, corr: float, bounded: bool, model: float) -> tuple[float, float]:
+    """``(value, standard model term)`` for a value carrying the helix correction ``corr``.
+
+    Applied in full: model fraction of it (rectangular, already divided by sqrt 3 in
+    ``model``). Bounded (the correction is known only to lie in [0, corr]): the midpoint,
+    with half-width |corr| / 2 as a rectangular term (GUM 4.3.7).
+    """
+    if bounded:
+        return value - 0.5 * corr, 0.5 * abs(corr) / math.sqrt(3.0)
+    return value, model * abs(corr)
+
+
 def _level(limb: tp.LimbProfile, kind: str) -> tuple[float, float]:
     r = _pool_flats([limb], kind, "level")
     return (r[0], r[1]) if r else (float("nan"), float("nan"))
@@ -79,6 +94,7 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
     notes: list[str] = []
     meas: dict[str, Measured] = {}
     d_cal = float((cal.gauge or {}).get("size_mm") or 0.0) if cal.scale_absorbs_offset else 0.0
+    bounded = bool(helix.get("bounded"))
 
     def absorbed(length: float, g: float) -> float:
         if d_cal <= 0:
@@ -104,8 +120,9 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
         a, s, n = _pool_angles(limbs, side)
         a0, _, _ = _pool_angles(rlimbs, side)
         corr = a - a0
-        helix[f"flank_{side}_correction_deg"] = math.degrees(corr)
-        ang[side] = (a, math.hypot(s, _MODEL * abs(corr)))
+        a, s_model = _helix_term(a, corr, bounded, _MODEL)
+        helix[f"flank_{side}_correction_deg"] = math.degrees(a - a0)
+        ang[side] = (a, math.hypot(s, s_model))
         meas[f"flank_{side}"] = _m(math.degrees(a), math.degrees(ang[side][1]), "deg", n)
     theta = 0.5 * (ang["left"][0] + ang["right"][0])
     meas["included_angle"] = _m(math.degrees(ang["left"][0] + ang["right"][0]),
@@ -119,31 +136,37 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
             v, s, n, npts = flat
             raw_flat = _pool_flats(rlimbs, kind, "width")
             corr = v - raw_flat[0] if raw_flat else 0.0
+            v, s_model = _helix_term(v, corr, bounded, _MODEL)
             meas[f"{kind}_flat"] = _m(v, math.sqrt(s ** 2 + (g_flat * sb) ** 2 + (v * rel) ** 2
                                                 + absorbed(v, g_flat) ** 2 + floor ** 2
-                                                + (_MODEL * corr) ** 2), "mm", npts)
+                                                + s_model ** 2), "mm", npts)
         rad = _pool_flats(limbs, kind, "radius")
         if rad is not None:
             v, s, n, npts = rad
             raw_rad = _pool_flats(rlimbs, kind, "radius")
             corr = v - raw_rad[0] if raw_rad else 0.0
+            v, s_model = _helix_term(v, corr, bounded, _ARC_MODEL)
             meas[f"{kind}_radius"] = _m(v, math.sqrt(s ** 2 + sb ** 2 + (v * rel) ** 2
                                                   + absorbed(v, 1.0) ** 2 + floor ** 2
-                                                  + (_ARC_MODEL * corr) ** 2), "mm",
+                                                  + s_model ** 2), "mm",
                                         npts, note="blur bias sigma_e^2/(2R) corrected")
 
-    depths, dstd = [], []
-    for l in limbs:
+    depths, dstd, d_raw = [], [], []
+    for l, l0 in zip(limbs, rlimbs):
         c, sc = _level(l, "crest")
         r, sr = _level(l, "root")
         if math.isfinite(c) and math.isfinite(r):
             depths.append(c - r)
             dstd.append(math.hypot(sc, sr))
+            d_raw.append(_level(l0, "crest")[0] - _level(l0, "root")[0])
     if depths:
         d = float(np.mean(depths))
         sd = math.sqrt(float(np.sum(np.square(dstd)))) / len(depths)
+        corr = d - float(np.mean(d_raw)) if np.all(np.isfinite(d_raw)) else 0.0
+        # flat levels do not move with the flank correction; arc apexes do (first order)
+        d, s_model = _helix_term(d, corr, bounded, _ARC_MODEL)
         meas["depth"] = _m(d, math.sqrt(sd ** 2 + (d * rel) ** 2 + absorbed(d, 0.0) ** 2
-                                        + floor ** 2), "mm",
+                                        + floor ** 2 + s_model ** 2), "mm",
                            sum(len(l.crests) + len(l.roots) for l in limbs))
 
     if both:
@@ -200,6 +223,10 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
                 notes.append("a virtual wire touches outside the straight flanks: compare the "
                              "over-wire reading with care")
             helix["over_wire_wire_mm"] = wire
+    elif bounded:
+        notes.append("one edge in view and no spec: no diameters; the helix correction is "
+                     "known only to lie between 0 and its value for the smallest usual "
+                     "diameter: half of it applied, the other half in the uncertainty")
     elif helix.get("applied"):
         notes.append("one edge in view: no diameters; helix correction used the spec's basic "
                      "pitch diameter for the radius")

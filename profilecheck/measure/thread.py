@@ -12,14 +12,17 @@ Pipeline (see docs/conventions.md for frames and signs):
    line of sight (:mod:`._thread_sight`): moved from where its ray crosses the measurement
    plane to where the ray grazes the part (cylinder perspective of the rims and the depth
    of each point, ``dM/M = -dZ/Z``), and given the ray's inclination toward the axis;
-4. each edge is segmented into teeth and fitted (:mod:`._thread_profile`) once as seen and
+4. each edge is segmented into teeth and fitted (:mod:`._thread_profile`); crests and roots
+   are fitted as arcs where the spec gives a radius or where the floor sags as an arc
+   (:func:`._thread_profile.flat_sag`), else as flats; then once as seen and
    once with the helix correction (:mod:`.helix`) applied to every flank point, with that
    point's inclination (0 for a telecentric view); off-centre, flank points whose ray grazes
    the helicoid beyond the crest or root are dropped (the crest or root edge draws them);
 5. values are combined over teeth and edges, each with its expanded uncertainty (k = 2):
    fit and tooth-to-tooth scatter, the calibration's scale (relative, on every length) and
    edge offset (on widths and diameters), and a model term of 10 % of the helix correction
-   (rectangular);
+   (rectangular); with one edge and no spec the correction is only bounded (half applied,
+   half a rectangular term);
 6. against a spec: ISO 14253-1 checks, the infeed still to go, the tolerance envelope.
 
 Without a lens in the calibration (gauge only) the view is taken as telecentric and every
@@ -169,7 +172,8 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
         Scale, edge offset and optional lens of this camera set-up.
     spec : str or ThreadSpec, optional
         Designation (e.g. ``'M6x1-6g'``) or spec; gives the limits, the lead and hand for
-        the helix correction, and the crest/root form (flat or radiused).
+        the helix correction, and the crest/root form where it is radiused (a flat in the
+        spec does not stop a rounded crest or root in the outline being fitted as an arc).
     roi : optional
         Region of interest passed to :func:`profilecheck.imaging.find_edges`.
     line_of_sight : bool
@@ -201,8 +205,9 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
     points to image left when the axis runs left-right (on both edges, so a mirrored image
     swaps them). The helix correction uses the lead and hand of the spec (else the measured
     pitch, single start, right hand) and the radius from the image when both edges are seen
-    (else from the spec's basic pitch diameter); without either it is not applied and a
-    warning says so. See the module docstring for the line-of-sight model.
+    (else from the spec's basic pitch diameter); without either it is only bounded: half
+    its value at the smallest usual diameter (4 x pitch) is applied, the other half is a
+    rectangular uncertainty term, and a warning says so. See the module docstring for the line-of-sight model.
     """
     if not isinstance(calibration, Calibration):
         raise TypeError(f"calibration must be a Calibration, got {type(calibration).__name__}")
@@ -363,6 +368,11 @@ def _form(spec: Any) -> dict[str, Any]:
             "crest_drop": rc * (1 - math.sin(th)), "root_drop": rr * (1 - math.sin(th))}
 
 
+#: Smallest usual major diameter over pitch (ISO 261 coarse series: M1 x 0.25 gives 4, from
+#: memory; the standards-notes section 1 list starts at M1.6 x 0.35, 4.6): with one edge and
+#: no spec the helix correction is bounded by its value at this diameter.
+D_OVER_P_MIN = 4.0
+
 #: A crest or root is read as an arc when its floor sags toward the material by more than
 #: this many standard errors and by more than ``SAG_MIN_SIGMA`` of the edge blur sigma_e
 #: (renders: flat floors give 0 +/- 0.4 um, H/6 roots 3-4 um; common practice, no source).
@@ -395,7 +405,7 @@ def _form_from_data(form: dict[str, Any], raw: dict[str, tp.LimbProfile],
         sag = float(np.mean(sags))
         std = math.sqrt(float(np.sum(np.square(stds)))) / len(stds)
         if sag > SAG_T * std and sag > SAG_MIN_SIGMA * sigma_e and math.isfinite(radii[0]):
-            th = 0.5 * np.mean([limb.mean_angle(s)[0] for limb in raw.values()
+            th = np.mean([limb.mean_angle(s)[0] for limb in raw.values()
                                 for s in ("left", "right") if limb.side(s)])
             out[f"radiused_{kind}"] = True
             out[f"{kind}_drop"] = float(np.median(radii)) * (1.0 - math.sin(th))
@@ -487,9 +497,20 @@ def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, wa
         d2 = spec.pitch_diameter_mm
         d_src = "spec basic pitch diameter"
     else:
-        warnings.append("helix correction not applied: the diameter is unknown (give the spec "
-                        "or get both edges in view); flank angles read slightly wide")
-        return ({"applied": False, "reason": "diameter unknown"}, dict(raw))
+        # One edge, no spec: the correction is only bounded. It falls as the diameter grows
+        # (shift a^2 / (2 rho tan theta), helix.py), so it lies between 0 (large diameter)
+        # and its value at the smallest usual diameter; half of that is applied and the
+        # other half goes into the uncertainty as a rectangular term (_thread_values.py).
+        limb0 = next(iter(raw.values()))
+        h_cp = (float(np.mean([c.level for c in limb0.crests])) - limb0.pitch_line_y
+                if limb0.crests else 0.375 * pitch_seen)
+        d2 = max(D_OVER_P_MIN * pitch_seen - 2.0 * h_cp, pitch_seen)
+        d_src = (f"bound: smallest usual major diameter {D_OVER_P_MIN:g} x pitch less the "
+                 "measured crest-to-pitch-line height")
+        warnings.append("helix correction only bounded: the diameter is unknown (give the spec "
+                        "or get both edges in view); half the correction for the smallest "
+                        f"usual diameter ({D_OVER_P_MIN:g} x pitch) is applied and the other half "
+                        "is in the uncertainty of flanks and flats")
     lens = cal.lens if sight_pts is not None else None
     model = "telecentric (parallel view, line of sight square to the axis assumed)" \
         if lens is None else "lens: line of sight per flank from the calibrated lens"
@@ -565,7 +586,8 @@ def _helix_pass(raw, sr, top_m, bot_m, frame, spec, cal, sigma_e, form, both, wa
                                       **_drops(form, limb0))
         fitted[name] = limb_th
     psi = lead_angle_rad(lead, d2)
-    helix = {"applied": True, "model": model, "lead_mm": lead, "right_hand": right_hand,
+    helix = {"applied": True, "bounded": not both and spec is None, "model": model,
+             "lead_mm": lead, "right_hand": right_hand,
              "diameter_mm": d2, "diameter_source": d_src,
              "lead_angle_deg": math.degrees(psi),
              "lead_source": "spec" if spec is not None else "measured pitch, single start assumed"}
