@@ -87,3 +87,22 @@ def test_rounded_root_one_edge_independent_render():
     assert m["root_radius"].value == pytest.approx(0.144338 * p, rel=0.15)
     assert math.isfinite(m["root_radius"].u) and m["root_radius"].u > 0
     assert np.isfinite(m["crest_flat"].value)
+
+
+def test_unr_smallest_root_radius_found():
+    # ASME B1.1 UNR: external root radius >= 0.108253 P (standards-notes section 3), an arc
+    # tangent to both 60 deg flanks: its bottom lies R above the sharp-V apex at d2 - H, so
+    # d3 = d2 - H + 2R with d2 = d - 0.649519 P, H = 0.866025 P (analytic geometry).
+    # 1/4-20 at 10 um/px: the floor between the flank lines is only a few px wide.
+    from profilecheck.synth import axial_profile_un
+    p = 25.4 / 20
+    rr = 0.108253 * p
+    cam = Camera(0.010, (520, 760), rotation_deg=0.6, centre_mm=(0.02, 0.01))
+    img, _ = render_thread(cam, profile=axial_profile_un(20, 0.25, root_radius_mm=rr),
+                           thread_length_mm=8.0, x_start_mm=-4.0, blur_px=1.2, noise=2.0,
+                           seed=3)
+    cal = Calibration(0.010, 1e-7, (520, 760), blur_px=1.2)
+    m = measure_thread(img.astype(float) / 255.0, cal, spec="1/4-20 UNR-2A").measurements
+    d3 = 6.35 - 0.649519 * p - 0.866025 * p + 2 * rr
+    assert "root_radius" in m
+    assert abs(m["minor_diameter"].value - d3) <= min(m["minor_diameter"].u, 0.002)

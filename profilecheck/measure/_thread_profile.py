@@ -536,10 +536,11 @@ def flat_sag(xy_mm: np.ndarray, limb: LimbProfile, sigma_e_mm: float,
     """Evidence of a rounded crest or root: mean sag of the floor between the flank lines.
 
     On each crest (or root) of ``limb`` the outline points lying inside the tooth (or
-    groove) and at least ``3 sigma_e`` from both flank lines (clear of the blurred corners,
+    groove) and at least ``2.5 sigma_e`` from both flank lines (clear of the blurred corners,
     vision-notes section 1.2) are fitted by a parabola ``y = a + b x + c x^2``; its sag over
     that span, ``|c| w^2 / 4`` toward the material, is 0 on a flat and ``w^2 / (8 R)`` on an
-    arc of radius R (analytic geometry).
+    arc of radius R (analytic geometry). (The margin is 2.5 sigma_e along the normal of each
+    flank, the fewest points 5: small radii at 10 um/px leave only a few px of floor.)
 
     Returns
     -------
@@ -569,14 +570,14 @@ def flat_sag(xy_mm: np.ndarray, limb: LimbProfile, sigma_e_mm: float,
         y_v = (fb.line.x_ref - fb.line.k * fb.line.y_ref
                - fa.line.x_ref + fa.line.k * fa.line.y_ref) / (fa.line.k - fb.line.k)
         th = 0.5 * (abs(math.atan(fa.line.k)) + abs(math.atan(fb.line.k)))
-        gap = 3.0 * sigma_e_mm / max(math.cos(th), 0.1)
+        gap = 2.5 * sigma_e_mm / max(math.cos(th), 0.1)
         lo_x, hi_x = sorted((float(fa.line.x_ref), float(fb.line.x_ref)))
         i0, i1 = np.searchsorted(x, [lo_x, hi_x])
         px, py = x[i0:i1], y[i0:i1]
         xa, xb = fa.line.x_at(py), fb.line.x_at(py)
         inside = ((px > np.minimum(xa, xb) + gap) & (px < np.maximum(xa, xb) - gap)
                   & (sgn * (py - fl.level) > -(0.5 * abs(fl.level - y_v) + 3 * sigma_e_mm)))
-        if inside.sum() < 6:
+        if inside.sum() < 5:
             continue
         u, v = px[inside], py[inside]
         xm = 0.5 * (u.min() + u.max())

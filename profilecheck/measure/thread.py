@@ -328,6 +328,10 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
                               if sight[0] is not None else "axial tilt per point only")
     from ._thread_values import assemble
     meas, per_tooth, notes = assemble(fitted, raw, spec, calibration, helix, both, sigma_e)
+    for kind in ("crest", "root"):
+        if form.get(f"{kind}_from_data"):
+            notes.append(f"the {kind}s are rounded in the picture and were fitted as arcs "
+                         f"({kind} radius reported instead of a flat)")
     if calibration.lens is None:
         notes.append("no lens model in the calibration (gauge only): a telecentric (parallel) "
                      "view is assumed; through an ordinary lens, readings away from the centre "
