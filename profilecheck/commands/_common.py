@@ -83,3 +83,32 @@ def exit_code_for(verdict_overall: str) -> int:
 def info(msg: str) -> None:
     """Progress and notes go to stderr; stdout carries the table or JSON."""
     print(msg, file=sys.stderr)
+
+
+def finish_measurement(args: Any, result: Any, img: Any, outputs: "OutputSet", *,
+                       extra_lines: Callable[[dict], list[str]] | None = None,
+                       before_commit: Callable[[dict], None] | None = None) -> int:
+    """The common end of ``thread``, ``tool`` and ``height``: queue the standard outputs
+    (``--json --annotate --sheet --csv --log``), write them all, print the table and the
+    warnings, and return the exit status from the verdict.
+
+    ``extra_lines(d)`` adds lines under the table; ``before_commit(d)`` queues
+    command-specific outputs (e.g. ``--save-axis``) on ``outputs``.
+    """
+    from ..report.outputs import add_standard_outputs
+    from ..report.table import format_table
+
+    d = result.to_dict()
+    d["image"] = args.image
+    d["calibration"] = dict(d["calibration"], file=args.cal)
+    add_standard_outputs(outputs, args, d, img, overlays=result.overlays)
+    if before_commit is not None:
+        before_commit(d)
+    text = format_table(d, units=args.units)
+    if extra_lines is not None:
+        text += "".join(line + "\n" for line in extra_lines(d))
+    outputs.commit()
+    print(text, end="")
+    for w in result.warnings:
+        info(f"warning: {w}")
+    return exit_code_for(result.verdict)

@@ -59,8 +59,8 @@ def run(args) -> int:
     from ..calibration import load_calibration
     from ..errors import ProfilecheckError
     from ..imaging import load_image
-    from ..report.outputs import add_standard_outputs, prepare_outputs
-    from ._common import OutputSet, dumps_json, exit_code_for, info
+    from ..report.outputs import prepare_outputs
+    from ._common import OutputSet, dumps_json, finish_measurement
 
     if args.reference == "line" and not args.axis:
         raise ProfilecheckError("--reference line needs --axis FILE (a saved axis line)")
@@ -89,27 +89,9 @@ def run(args) -> int:
                                 work_diameter_mm=diameter)
     except ValueError as e:  # only the work diameter can be wrong this late
         raise ProfilecheckError(f"--work-diameter: {e}") from None
-    d = result.to_dict()
-    d["image"] = args.image
-    d["calibration"] = dict(d["calibration"], file=args.cal)
-    add_standard_outputs(outputs, args, d, img, overlays=result.overlays)
-    if axis_path is not None and result.axis_line is not None:
-        line = dict(result.axis_line.to_dict(), source_image=args.image)
-        outputs.add_text(axis_path, dumps_json(line))
-    text = _table(d, args.units)
-    outputs.commit()
-    print(text, end="")
-    for w in result.warnings:
-        info(f"warning: {w}")
-    return exit_code_for(result.verdict)
+    def _save_axis(_d: dict) -> None:
+        if axis_path is not None and result.axis_line is not None:
+            line = dict(result.axis_line.to_dict(), source_image=args.image)
+            outputs.add_text(axis_path, dumps_json(line))
 
-
-def _table(d: dict, units: str) -> str:
-    try:
-        from ..report.table import format_table
-    except ImportError:  # pragma: no cover
-        format_table = None
-    if format_table is not None:
-        return format_table(d, units=units)
-    return "".join(f"{k}: {m['value']:.5g} +/- {m['u']:.2g} {m['unit']}\n"
-                   for k, m in d["measurements"].items())
+    return finish_measurement(args, result, img, outputs, before_commit=_save_axis)

@@ -54,8 +54,8 @@ def run(args) -> int:
     from ..calibration import load_calibration
     from ..imaging import load_image
     from ..measure import measure_thread
-    from ..report.outputs import add_standard_outputs, prepare_outputs
-    from ._common import exit_code_for, info
+    from ..report.outputs import prepare_outputs
+    from ._common import finish_measurement
 
     outputs = prepare_outputs(args)  # every output path checked before any work
     cal = load_calibration(args.cal)
@@ -66,28 +66,13 @@ def run(args) -> int:
     img = load_image(args.image)
     result = measure_thread(img, cal, spec=spec, line_of_sight=not args.no_line_of_sight,
                             camera_label=args.camera_label)
-    d = result.to_dict()
-    d["image"] = args.image
-    d["calibration"] = dict(d["calibration"], file=args.cal)
-    add_standard_outputs(outputs, args, d, img, overlays=result.overlays)
-    text = _table(d, args.units)
-    outputs.commit()
-    print(text, end="")
-    for w in result.warnings:
-        info(f"warning: {w}")
-    return exit_code_for(result.verdict)
+    return finish_measurement(args, result, img, outputs,
+                              extra_lines=_extra_lines)
 
 
-def _table(d: dict, units: str) -> str:
-    try:
-        from ..report.table import format_table
-    except ImportError:  # report package not present: plain rows
-        return _plain(d, units)
-    text = format_table(d, units=units)
+def _extra_lines(d: dict) -> list[str]:
+    """Lines under the table (which already shows the infeed): the helix correction."""
     extra = []
-    inf = d.get("infeed")
-    if inf and "infeed" not in text:
-        extra.append(_infeed_line(inf, units))
     hx = d.get("helix") or {}
     if hx.get("applied") and "pitch_diameter_correction_mm" in hx:
         extra.append(f"helix correction: pitch diameter {hx['pitch_diameter_correction_mm'] * 1000:+.1f} um, "
@@ -96,26 +81,4 @@ def _table(d: dict, units: str) -> str:
     elif hx.get("applied"):
         extra.append(f"helix correction: flanks {hx.get('flank_left_correction_deg', 0):+.3f} / "
                      f"{hx.get('flank_right_correction_deg', 0):+.3f} deg ({hx['model']})")
-    return text + "".join(e + "\n" for e in extra)
-
-
-def _infeed_line(inf: dict, units: str) -> str:
-    r = inf["radial"]["value"]
-    c = inf["compound"]["value"]
-    a = inf["compound_angle"]["value"]
-    if units == "in":
-        return (f"infeed still to go: radial {r / 25.4 * 1000:.2f} thou, compound "
-                f"{c / 25.4 * 1000:.2f} thou at {a:g} deg - {inf['note']}")
-    return (f"infeed still to go: radial {r * 1000:.0f} um, compound {c * 1000:.0f} um at "
-            f"{a:g} deg - {inf['note']}")
-
-
-def _plain(d: dict, units: str) -> str:
-    lines = []
-    for k, m in d["measurements"].items():
-        v, u, unit = m["value"], m["u"], m["unit"]
-        if unit == "mm" and units == "in":
-            v, u, unit = v / 25.4, u / 25.4, "in"
-        lines.append(f"{k:16s} {v:.5f} +/- {u:.5f} {unit}")
-    lines.append(f"verdict: {d['verdict']['overall']}")
-    return "\n".join(lines) + "\n"
+    return extra

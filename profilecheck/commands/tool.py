@@ -54,8 +54,8 @@ def register(subparsers) -> None:
 def run(args) -> int:
     from ..calibration import load_calibration
     from ..imaging import load_image
-    from ..report.outputs import add_standard_outputs, prepare_outputs
-    from ._common import exit_code_for, info
+    from ..report.outputs import prepare_outputs
+    from ._common import finish_measurement
 
     outputs = prepare_outputs(args)
     cal = load_calibration(args.cal)
@@ -75,16 +75,7 @@ def run(args) -> int:
         from ..measure.tool import measure_tool
 
         result = measure_tool(img, cal, spec=spec, internal=args.internal)
-    d = result.to_dict()
-    d["image"] = args.image
-    d["calibration"] = dict(d["calibration"], file=args.cal)
-    add_standard_outputs(outputs, args, d, img, overlays=result.overlays)
-    text = _table(d, args.units)
-    outputs.commit()
-    print(text, end="")
-    for w in result.warnings:
-        info(f"warning: {w}")
-    return exit_code_for(result.verdict)
+    return finish_measurement(args, result, img, outputs, extra_lines=_extra_lines)
 
 
 def _usage(msg: str):
@@ -93,17 +84,8 @@ def _usage(msg: str):
     return ProfilecheckError(msg)
 
 
-def _table(d: dict, units: str) -> str:
-    try:
-        from ..report.table import format_table
-    except ImportError:  # pragma: no cover - report package always present in a full install
-        format_table = None
-    if format_table is not None:
-        text = format_table(d, units=units)
-    else:
-        text = "".join(f"{k}: {m['value']:.5g} +/- {m['u']:.2g} {m['unit']}\n"
-                       for k, m in d["measurements"].items())
-    extra = []
+def _extra_lines(d: dict) -> list[str]:
+    """Line under the table: the tip form found and the reference of the angles."""
     if d.get("tip_form"):
-        extra.append(f"tip form: {d['tip_form']}; angles from the {d.get('reference', 'shank')}")
-    return text + "".join(e + "\n" for e in extra)
+        return [f"tip form: {d['tip_form']}; angles from the {d.get('reference', 'shank')}"]
+    return []
