@@ -280,10 +280,16 @@ def load_image(path: str | os.PathLike, *, max_pixels: int = DEFAULT_MAX_PIXELS)
     else:
         raise _fail(p, f"unsupported sample format {arr.dtype} (use 8- or 16-bit integer images)")
     channels = arr.shape[2]
-    a = arr.astype(np.float64)
     if channels in (1, 2):
-        grey = a[:, :, 0]
-    elif channels in (3, 4):
+        # one table look-up per pixel: the table holds code / scale, the very values the
+        # float conversion and division below give, in one pass over the image
+        codes = np.ascontiguousarray(arr[:, :, 0])
+        table = np.arange(int(scale) + 1, dtype=np.float64) / scale
+        if codes.dtype == np.uint8:
+            return cv2.LUT(codes, table)
+        return np.take(table, codes)
+    a = arr.astype(np.float64)
+    if channels in (3, 4):
         grey = a[:, :, :3] @ _BGR_WEIGHTS
     else:
         raise _fail(p, f"unsupported number of channels ({channels})")

@@ -233,9 +233,12 @@ def flatten_backlight(img, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX)
     floor = dark_level + 0.5 * (bright_med - dark_level)
     bg_small = np.clip(bg_small, floor, None)
     bg = cv2.resize(bg_small, (cols, rows), interpolation=cv2.INTER_LINEAR) if f < 1 else bg_small
-    denom = np.maximum(bg - dark_level, 1e-9)
-    flat = a - dark_level
+    # in place: one full-size temporary for the denominator, freed on return
+    denom = np.subtract(bg, dark_level)
+    np.maximum(denom, 1e-9, out=denom)
+    flat = np.subtract(a, dark_level)
     flat /= denom
+    del denom
     contrast = float(np.median(bg_small - dark_level))
     try:
         # on the reduced copy, flattened by the reduced background (information only)

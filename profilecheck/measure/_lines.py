@@ -14,6 +14,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ._thread_stats import median1d
+
 __all__ = ["FlankLine", "fit_flank_line", "fit_level", "fit_circle_lsq"]
 
 
@@ -38,6 +40,8 @@ class FlankLine:
 
     def x_at(self, y: float | np.ndarray) -> float | np.ndarray:
         """Axial position of the line at radial height ``y``."""
+        if isinstance(y, float):  # scalar fast path, the same IEEE operations
+            return self.x_ref + self.k * (y - self.y_ref)
         return self.x_ref + self.k * (np.asarray(y) - self.y_ref)
 
     def std_x_at(self, y: float) -> float:
@@ -81,7 +85,7 @@ def fit_flank_line(xy: np.ndarray, *, robust: bool = True) -> FlankLine:
         resid = d @ normal
         if not robust or len(pts) < 8:
             break
-        s = 1.4826 * np.median(np.abs(resid - np.median(resid))) + 1e-12
+        s = 1.4826 * median1d(np.abs(resid - median1d(resid))) + 1e-12
         keep = np.abs(resid) <= 3.5 * s
         if keep.all() or keep.sum() < 3:
             break
@@ -110,8 +114,8 @@ def fit_level(y: np.ndarray) -> tuple[float, float, float]:
     y = np.asarray(y, dtype=float)
     if y.size < 2:
         raise ValueError("fit_level needs at least 2 points")
-    med = np.median(y)
-    s = 1.4826 * np.median(np.abs(y - med)) + 1e-12
+    med = median1d(y)
+    s = 1.4826 * median1d(np.abs(y - med)) + 1e-12
     keep = np.abs(y - med) <= 3.5 * s
     if keep.sum() >= 2:
         y = y[keep]

@@ -92,5 +92,6 @@ def _envelope(limb: tp.LimbProfile, frame: AxisFrame, scale: float, spec: Any, t
             continue
         y = prof[:, 1] if both else prof[:, 1] - 0.5 * spec.pitch_diameter_mm + limb.pitch_line_y
         pts = limb_to_image(np.column_stack([prof[:, 0] + x0, y]), frame, scale, top)
-        out.append(Polyline(tuple(_pt(p) for p in pts), style))
+        # tolist() gives the same Python floats as float() per element, in one pass
+        out.append(Polyline(tuple(map(tuple, np.asarray(pts, float)[:, :2].tolist())), style))
     return out

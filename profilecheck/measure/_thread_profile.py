@@ -31,6 +31,7 @@ import numpy as np
 
 from ..errors import MeasurementError, QualityError
 from ._lines import FlankLine, fit_circle_lsq, fit_flank_line, fit_level
+from ._thread_stats import median1d, quantile1d
 
 __all__ = ["Flank", "Flat", "LimbProfile", "analyse_limb", "find_crossings", "flat_sag",
            "MIN_FULL_TEETH"]
@@ -230,7 +231,7 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         raise MeasurementError("too few edge points along the thread edge to find any teeth")
     order = np.argsort(xy[:, 0], kind="stable")
     x, y = xy[order, 0], xy[order, 1]
-    hi, lo = np.quantile(y, 0.98), np.quantile(y, 0.02)
+    hi, lo = quantile1d(y, 0.98), quantile1d(y, 0.02)
     depth0 = float(hi - lo)
     if depth0 < 6 * sigma_e_mm:
         raise MeasurementError("no thread teeth found along this edge (the outline is almost "
@@ -241,7 +242,7 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
     if len(rising) < 2:
         raise QualityError(f"only {len(rising)} tooth flank(s) found along the edge; "
                            f"at least {min_full_teeth} complete teeth must be in view")
-    p_est = float(np.median(np.diff(rising)))
+    p_est = float(median1d(np.diff(rising)))
     if not p_est > 0:
         raise MeasurementError("tooth spacing could not be found along the edge")
 
@@ -255,7 +256,7 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         # region r lies before crossing r: crest if crossing r is falling.
         is_crest = bool(ck[r] < 0) if r < len(ck) else bool(ck[-1] > 0)
         if sel.sum() >= 3:
-            levels.append(float(np.quantile(y[sel], 0.9 if is_crest else 0.1)))
+            levels.append(float(quantile1d(y[sel], 0.9 if is_crest else 0.1)))
         else:
             levels.append(float(hi if is_crest else lo))
     levels_arr = np.array(levels)
@@ -318,8 +319,8 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         fl = [f for f in flanks if f.side == side]
         if len(fl) >= 4:
             a = np.array([f.angle_rad for f in fl])
-            med = np.median(a)
-            mad = 1.4826 * np.median(np.abs(a - med))
+            med = median1d(a)
+            mad = 1.4826 * median1d(np.abs(a - med))
             lim = max(6 * mad, math.radians(0.5))
             for f, ai in zip(fl, a):
                 if abs(ai - med) > lim:
@@ -329,7 +330,7 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
     # Flank position outliers (a tooth out of place: drunken thread or damage).
     res = np.array([float(f.line.x_at(mid)) - ((aL if f.side == "left" else aR) + pitch * f.index)
                     for f in flanks])
-    s_rob = 1.4826 * float(np.median(np.abs(res - np.median(res))))
+    s_rob = 1.4826 * float(median1d(np.abs(res - median1d(res))))
     for f, e in zip(flanks, res):
         if abs(e) > max(6 * s_rob, 0.03 * pitch):
             bad_teeth.add(f.index)
@@ -342,8 +343,8 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
     # Chipped crest: crest level far below the others.
     if len(crests) >= 4:
         lv = np.array([c.level for c in crests])
-        med = np.median(lv)
-        mad = 1.4826 * np.median(np.abs(lv - med))
+        med = median1d(lv)
+        mad = 1.4826 * median1d(np.abs(lv - med))
         lim = max(6 * mad, 4 * sigma_e_mm, 0.03 * depth0)
         for c, v in zip(crests, lv):
             if abs(v - med) > lim:
@@ -455,9 +456,9 @@ def _fit_flats(x, y, flanks, levels, cross, sigma_e, m_crest, m_root, radiused_c
     left = {f.index: f for f in flanks if f.side == "left"}
     right = {f.index: f for f in flanks if f.side == "right"}
     crests, roots = [], []
-    hi_all = float(np.median([lv for lv, k in zip(levels[1:], [c[1] for c in cross]) if k > 0]
+    hi_all = float(median1d([lv for lv, k in zip(levels[1:], [c[1] for c in cross]) if k > 0]
                              or [levels.max()]))
-    lo_all = float(np.median([lv for lv, k in zip(levels[1:], [c[1] for c in cross]) if k < 0]
+    lo_all = float(median1d([lv for lv, k in zip(levels[1:], [c[1] for c in cross]) if k < 0]
                              or [levels.min()]))
     for i in sorted(left):
         if i in right:
@@ -482,7 +483,7 @@ def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused, arc_
     # Local level: a chipped crest or a deeper root sits away from the common level.
     around = (x > min(xa, xb)) & (x < max(xa, xb))
     if around.sum() >= 3:
-        level0 = float(np.quantile(y[around], 0.9 if kind == "crest" else 0.1))
+        level0 = float(quantile1d(y[around], 0.9 if kind == "crest" else 0.1))
         xa, xb = float(fa.line.x_at(level0)), float(fb.line.x_at(level0))
     if radiused:
         # Arc points: between the straight-flank ends, beyond the flank band.
@@ -597,4 +598,4 @@ def flat_sag(xy_mm: np.ndarray, limb: LimbProfile, sigma_e_mm: float,
     if not sags:
         return float("nan"), float("nan"), float("nan")
     s_arr, e_arr = np.array(sags), np.array(stds)
-    return float(s_arr.mean()), _mean_std(s_arr, e_arr), float(np.median(radii))
+    return float(s_arr.mean()), _mean_std(s_arr, e_arr), float(median1d(radii))
