@@ -347,6 +347,10 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
     infeed = (remaining_infeed(meas["pitch_diameter"], spec)
               if spec is not None and "pitch_diameter" in meas else None)
     verdict = overall(checks)
+    if verdict == "pass" and not any(c.name != "pitch" for c in checks):
+        # a right pitch alone does not make a conforming thread: with no diameter limits
+        # checked (basic dimensions only, or one edge in view) the verdict stays open
+        verdict = "none"
     overlays = build_overlays(fitted, frame, scale, spec, both, verdict, img.shape)
     cal_d = {"mm_per_px": calibration.mm_per_px, "u_mm_per_px": calibration.u_mm_per_px,
              "gauge": calibration.gauge, "created": calibration.created,

@@ -96,7 +96,8 @@ def format_table(result_dict: dict[str, Any], units: str = "mm", *,
     verdict = r.get("verdict") if isinstance(r.get("verdict"), dict) else {}
     overall = verdict.get("overall") or ("none" if not any(x.result for x in rows) else "")
     lines.append(f"overall: {verdict_word(overall)}"
-                 + ("  (no spec given: measured only)" if overall == "none" else ""))
+                 + (("  (no spec given: measured only)" if not r.get("spec") else
+                     "  (no class limits checked: see the warnings)") if overall == "none" else ""))
     warnings = [str(w) for w in (r.get("warnings") or []) if str(w).strip()]
     if warnings:
         lines.append("warnings:")
