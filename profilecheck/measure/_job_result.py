@@ -76,19 +76,7 @@ class JobResult:
         ``spec``, ``measurements`` (each ``{value, u, unit, ...}``), ``verdict``
         (``overall``, ``checks``, ``rule``), ``warnings``, plus ``notes``, ``advice`` and
         ``details``."""
-        return {
-            "kind": self.kind,
-            "image": self.image,
-            "calibration": self.calibration,
-            "spec": self.spec,
-            "measurements": {k: m.to_dict() for k, m in self.measurements.items()},
-            "verdict": {"overall": self.verdict, "checks": [c.to_dict() for c in self.checks],
-                        "rule": DECISION_RULE},
-            "warnings": list(self.warnings),
-            "notes": list(self.notes),
-            "advice": list(self.advice),
-            "details": self.details,
-        }
+        return dict(report_core(self, self.kind), advice=list(self.advice), details=self.details)
 
 
 def make_result(cls, *, checks, **kw):
@@ -185,3 +173,20 @@ def std_points(edges) -> np.ndarray:
     """Per-point 1-sigma positions (px) from the edge set, floored at 0.01 px."""
     s = np.asarray(getattr(edges, "std_px", np.full(len(edges.xy), 0.05)), float)
     return np.where(np.isfinite(s) & (s > 0), np.maximum(s, 0.01), 0.05)
+
+
+def report_core(result: Any, kind: str) -> dict[str, Any]:
+    """The keys every measurement report shares (``../shared/design.md``): ``kind``,
+    ``image``, ``calibration``, ``spec``, ``measurements``, ``verdict`` {``overall``,
+    ``checks``, ``rule``}, ``warnings``, ``notes``."""
+    return {
+        "kind": kind,
+        "image": result.image,
+        "calibration": result.calibration,
+        "spec": result.spec,
+        "measurements": {k: m.to_dict() for k, m in result.measurements.items()},
+        "verdict": {"overall": result.verdict, "checks": [c.to_dict() for c in result.checks],
+                    "rule": DECISION_RULE},
+        "warnings": list(result.warnings),
+        "notes": list(result.notes),
+    }

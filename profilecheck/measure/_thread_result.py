@@ -6,7 +6,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from ..quantity import Measured
-from ..verdict import DECISION_RULE, Check
+from ..verdict import Check
 
 __all__ = ["ThreadResult"]
 
@@ -64,16 +64,10 @@ class ThreadResult:
         """The JSON of design.md: ``kind``, ``image``, ``calibration``, ``spec``,
         ``measurements``, ``verdict`` {``overall``, ``checks``, ``rule``}, ``warnings``, plus
         ``per_tooth``, ``helix``, ``infeed``, ``axis``, ``edges_in_view``, ``notes``."""
+        from ._job_result import report_core
+
         return {
-            "kind": "thread",
-            "image": self.image,
-            "calibration": self.calibration,
-            "spec": self.spec,
-            "measurements": {k: m.to_dict() for k, m in self.measurements.items()},
-            "verdict": {"overall": self.verdict, "checks": [c.to_dict() for c in self.checks],
-                        "rule": DECISION_RULE},
-            "warnings": list(self.warnings),
-            "notes": list(self.notes),
+            **report_core(self, "thread"),
             "per_tooth": self.per_tooth,
             "helix": self.helix,
             "infeed": self.infeed,
