@@ -7,7 +7,7 @@ from typing import Any
 
 import numpy as np
 
-from ..overlays import InfiniteLine, Label, Polyline, ScaleBar, Segment
+from ..overlays import InfiniteLine, Label, Polyline, Segment, scale_bar_for
 from . import _thread_profile as tp
 from ._thread_axis import AxisFrame
 
@@ -24,14 +24,6 @@ def limb_to_image(xy_mm: np.ndarray, frame: AxisFrame, scale: float, top: bool,
 
 def _pt(a: np.ndarray) -> tuple[float, float]:
     return (float(a[0]), float(a[1]))
-
-
-def _nice_length(mm: float) -> float:
-    e = 10 ** math.floor(math.log10(mm))
-    for m in (5, 2, 1):
-        if m * e <= mm:
-            return m * e
-    return e
 
 
 def build_overlays(limbs: dict[str, tp.LimbProfile], frame: AxisFrame, scale: float, spec: Any,
@@ -72,8 +64,7 @@ def build_overlays(limbs: dict[str, tp.LimbProfile], frame: AxisFrame, scale: fl
     style = verdict if verdict in ("pass", "fail", "undecided") else "info"
     title = (spec.designation + ": " if spec is not None else "") + words.get(verdict, verdict)
     out.append(Label((10.0, 10.0), title, style))
-    bar_mm = _nice_length(0.2 * w * scale)
-    out.append(ScaleBar(bar_mm, bar_mm / scale, f"{bar_mm:g} mm"))
+    out.append(scale_bar_for(scale, w))
     return tuple(out)
 
 

@@ -393,7 +393,7 @@ def _add_cut_effects(meas, e_mm, u_e, diameter_mm, half_deg) -> None:
 
 
 def _overlays(point, direction, tip, top, front, w, cal):
-    from ..overlays import InfiniteLine, Label, Marker, ScaleBar, Segment
+    from ..overlays import InfiniteLine, Label, Marker, Segment, scale_bar_for
 
     out = [InfiniteLine(tuple(float(v) for v in point), tuple(float(v) for v in direction),
                         "axis")]
@@ -402,5 +402,5 @@ def _overlays(point, direction, tip, top, front, w, cal):
         out.append(Segment(tuple(float(v) for v in w.apex), (float(far[0]), float(far[1])), "fit"))
     out.append(Marker(tuple(float(v) for v in tip), 8.0, "fit"))
     out.append(Label((float(tip[0]) + 10, float(tip[1]) - 24), "tool tip", "info"))
-    out.append(ScaleBar(1.0, 1.0 / cal.mm_per_px, "1 mm"))
+    out.append(scale_bar_for(cal.mm_per_px, cal.image_size[0]))
     return out

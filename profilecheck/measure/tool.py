@@ -446,7 +446,7 @@ def _tip_advice(kind, val, lo, hi, beta, internal) -> list[str]:
 
 
 def _overlays(wedge, rl, rr, axis, shank_lines, tip: TipForm, cal):
-    from ..overlays import Arc, InfiniteLine, Label, Marker, ScaleBar, Segment
+    from ..overlays import Arc, InfiniteLine, Label, Marker, Segment, scale_bar_for
 
     out = []
     apex = tuple(float(v) for v in wedge.apex)
@@ -464,8 +464,7 @@ def _overlays(wedge, rl, rr, axis, shank_lines, tip: TipForm, cal):
     elif tip.ends is not None:
         out.append(Segment(tip.ends[0], tip.ends[1], "fit"))
     out.append(Label((apex[0] + 12, apex[1] + 12), "virtual sharp", "info"))
-    px = 1.0 / cal.mm_per_px
-    out.append(ScaleBar(0.1, 0.1 * px, "0.1 mm"))
+    out.append(scale_bar_for(cal.mm_per_px, cal.image_size[0]))
     return out
 
 

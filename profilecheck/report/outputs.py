@@ -85,17 +85,10 @@ def result_dict_of(result: Any) -> dict[str, Any]:
 
 
 def auto_scale_bar(mm_per_px: float, width_px: int) -> Any:
-    """A :class:`~profilecheck.overlays.ScaleBar` of a round length (1, 2 or 5 x 10^k mm)
-    near a fifth of the image width."""
-    from ..overlays import ScaleBar
+    """A scale bar near a fifth of the image width (:func:`profilecheck.overlays.scale_bar_for`)."""
+    from ..overlays import scale_bar_for
 
-    if not (mm_per_px > 0 and math.isfinite(mm_per_px)) or width_px < 1:
-        raise ValueError("mm_per_px must be > 0 and width_px >= 1")
-    target = 0.2 * width_px * mm_per_px
-    k = math.floor(math.log10(target))
-    best = max((m * 10.0 ** k for m in (1, 2, 5) if m * 10.0 ** k <= target), default=10.0 ** k)
-    text = f"{best * 1000:g} \u00b5m" if best < 1 else f"{best:g} mm"
-    return ScaleBar(length_mm=best, length_px=best / mm_per_px, text=text)
+    return scale_bar_for(mm_per_px, width_px)
 
 
 def _mm_per_px(d: Mapping[str, Any], args: argparse.Namespace) -> float | None:
