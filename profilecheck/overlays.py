@@ -88,7 +88,7 @@ Overlay = Union[Segment, InfiniteLine, Polyline, Arc, Marker, Label, ScaleBar]
 
 def scale_bar_for(mm_per_px: float, width_px: int) -> ScaleBar:
     """A :class:`ScaleBar` of a round length (1, 2 or 5 x 10^k mm) near a fifth of the
-    image width, labelled in um below 1 mm."""
+    image width, labelled in micrometres below 1 mm."""
     import math
 
     if not (mm_per_px > 0 and math.isfinite(mm_per_px)) or width_px < 1:
@@ -96,5 +96,5 @@ def scale_bar_for(mm_per_px: float, width_px: int) -> ScaleBar:
     target = 0.2 * width_px * mm_per_px
     k = math.floor(math.log10(target))
     best = max((m * 10.0 ** k for m in (1, 2, 5) if m * 10.0 ** k <= target), default=10.0 ** k)
-    text = f"{best * 1000:g} um" if best < 1 else f"{best:g} mm"
+    text = f"{best * 1000:g} \u00b5m" if best < 1 else f"{best:g} mm"
     return ScaleBar(length_mm=best, length_px=best / mm_per_px, text=text)
