@@ -164,6 +164,9 @@ def _profile_model(x0, s, t, dr, W: int):
     S, dS_du, dS_ds : ndarray (n, W)
     """
     n = x0.shape[0]
+    if n == 0:
+        # no profiles (e.g. none with samples enough on both sides): empty, not None
+        return np.empty((0, W)), np.empty((0, W)), np.empty((0, W))
     w = dr * ((np.arange(W + 1, dtype=np.float64) - 0.5)[None, :] - x0)
     pos = w > 0
     v = -np.abs(w)

@@ -8,7 +8,10 @@ then moves every edge in the dim corners. Instead:
    SMC 9(1):62-66, 1979);
 2. a smooth background surface (2-D quadratic by default) fitted by least squares to the
    bright pixels at least 10 px from the edges, trimmed iteratively at 3 robust standard deviations so
-   dust and glare spots do not pull it;
+   dust and glare spots do not pull it; where it is extrapolated (over the part, or over a
+   bright strip between an edge and the image border too narrow to be fitted) it is held
+   between half the field level and a quarter of the contrast above the brightest field
+   pixel, so such a strip still reads bright and its edge is found;
 3. the dark level from the interior of the dark part (median);
 4. the flattened image f = (img - dark) / (background - dark), which is ~0 in the part and
    ~1 in the field everywhere; the silhouette is f < 0.5 (the 50 % level of an incoherent
@@ -31,6 +34,8 @@ __all__ = ["Silhouette", "flatten_backlight", "linearise", "clipping_fraction"]
 
 _REDUCED_LONG_SIDE = 128
 _EDGE_CLEAR_PX = 10.0
+# the fitted background is held below dark + this x (brightest reduced field pixel - dark)
+_BG_CEILING_REL = 1.25
 
 
 def _all_finite(a: np.ndarray) -> bool:
@@ -231,7 +236,14 @@ def flatten_backlight(img, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX)
     bright_med = float(np.median(small[bright0]))
     # the polynomial is trusted near the field; clamp wild extrapolation over the part
     floor = dark_level + 0.5 * (bright_med - dark_level)
-    bg_small = np.clip(bg_small, floor, None)
+    # and over a bright strip too narrow for the clearance (an edge a few px from the image
+    # border): there the polynomial is extrapolated from the far side of the part and can
+    # run to several times the field level, which would read the strip as dark and lose the
+    # edge; no backlight is brighter than its brightest field pixels by a quarter of the
+    # contrast (common practice, no source)
+    bright_max = float(np.max(small[bright0]))
+    ceiling = dark_level + _BG_CEILING_REL * (bright_max - dark_level)
+    bg_small = np.clip(bg_small, floor, max(ceiling, floor))
     bg = cv2.resize(bg_small, (cols, rows), interpolation=cv2.INTER_LINEAR) if f < 1 else bg_small
     # in place: one full-size temporary for the denominator, freed on return
     denom = np.subtract(bg, dark_level)
