@@ -188,15 +188,8 @@ def fit_line(xy, *, weights=None, sigma_px=None, robust: bool = True) -> LineFit
             raise ValueError("xy: points are coincident or give no direction")
         if not robust:
             break
-        r = (pts - c) @ normal
-        rk = r[keep]
-        med = np.median(rk)
-        scale = _MAD_TO_SIGMA * np.median(np.abs(rk - med))
-        floor = _SCALE_FLOOR_PX
-        if absolute:
-            floor = max(floor, float(np.median(1.0 / np.sqrt(w_all[keep]))))
-        new_keep = (w_all > 0) & (np.abs(r - med) <= _TRIM_K * max(scale, floor))
-        if new_keep.sum() < 2 or np.array_equal(new_keep, keep):
+        new_keep = _trimmed((pts - c) @ normal, keep, w_all, absolute, min_keep=2)
+        if new_keep is None:
             break
         keep = new_keep
     p, w = pts[keep], w_all[keep]
@@ -359,15 +352,9 @@ def fit_circle(xy, *, weights=None, sigma_px=None, robust: bool = True) -> Circl
             raise ValueError("xy: points do not determine a circle (collinear?)")
         if not robust:
             break
-        r_all = np.hypot(*(pts - centre).T) - radius
-        rk = r_all[keep]
-        med = np.median(rk)
-        scale = _MAD_TO_SIGMA * np.median(np.abs(rk - med))
-        floor = _SCALE_FLOOR_PX
-        if absolute:
-            floor = max(floor, float(np.median(1.0 / np.sqrt(w_all[keep]))))
-        new_keep = (w_all > 0) & (np.abs(r_all - med) <= _TRIM_K * max(scale, floor))
-        if new_keep.sum() < 3 or np.array_equal(new_keep, keep):
+        new_keep = _trimmed(np.hypot(*(pts - centre).T) - radius, keep, w_all, absolute,
+                            min_keep=3)
+        if new_keep is None:
             break
         keep = new_keep
     p, w = pts[keep], w_all[keep]
@@ -474,3 +461,21 @@ def regress_line(x, y) -> Regression:
                       cov=np.array([[var_b, cov_ab], [cov_ab, var_a]]),
                       residual_std=float(np.sqrt(s2)),
                       r_squared=float(1.0 - (r @ r) / syy) if syy > 0 else float("nan"), n=n)
+
+
+def _trimmed(r: np.ndarray, keep: np.ndarray, w_all: np.ndarray, absolute: bool, *,
+             min_keep: int) -> np.ndarray | None:
+    """One trimming step of the robust fits: keep points within ``_TRIM_K`` robust sigmas
+    (MAD of the kept residuals, floored at ``_SCALE_FLOOR_PX`` or, with absolute weights,
+    at the points' own median sigma) of the median residual. ``None`` when the set is
+    unchanged or would fall below ``min_keep`` points."""
+    rk = r[keep]
+    med = np.median(rk)
+    scale = _MAD_TO_SIGMA * np.median(np.abs(rk - med))
+    floor = _SCALE_FLOOR_PX
+    if absolute:
+        floor = max(floor, float(np.median(1.0 / np.sqrt(w_all[keep]))))
+    new_keep = (w_all > 0) & (np.abs(r - med) <= _TRIM_K * max(scale, floor))
+    if new_keep.sum() < min_keep or np.array_equal(new_keep, keep):
+        return None
+    return new_keep
