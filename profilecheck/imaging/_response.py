@@ -70,9 +70,9 @@ def estimate_gamma(img, *, roi=None, max_profiles: int = 400) -> GammaEstimate:
     """
     import cv2
     from scipy.optimize import minimize_scalar
-    from skimage.measure import find_contours
 
     from ..errors import MeasurementError
+    from ._contours import iso_contours
     from ._seeds import seeds_from_contours
     from ._stepfit import fit_steps
     from .edges import _SEED_LEVEL, _check_roi, _fit_group, _gather, _window_mask
@@ -90,13 +90,13 @@ def estimate_gamma(img, *, roi=None, max_profiles: int = 400) -> GammaEstimate:
     if sil.contrast < 0.05:
         raise MeasurementError("no silhouette to estimate the camera response from")
     fs = cv2.GaussianBlur(sil.flat, (0, 0), 1.0, borderType=cv2.BORDER_REPLICATE)
-    seeds = seeds_from_contours(find_contours(fs, _SEED_LEVEL))
+    seeds = seeds_from_contours(iso_contours(fs, _SEED_LEVEL))
     usable = np.flatnonzero(~seeds.corner)
     if len(usable) < 20:
         raise MeasurementError("too few edge points to estimate the camera response")
     idx = usable[np.linspace(0, len(usable) - 1, min(max_profiles, len(usable))).astype(int)]
     # blur and windows from a first fit on the recorded data
-    res0, _s, _d, enough, hw, _t = _fit_group(a, fs, censored, seeds, idx,
+    res0, _s, _d, enough, hw, _t = _fit_group(a, fs, a, seeds, idx,
                                               1.0, hw=np.full(len(idx), 12))
     sb = res0.s * seeds.n_axis[idx]
     good = res0.converged & enough & np.isfinite(sb)

@@ -1,6 +1,7 @@
 """Seeds for edge profiles: where the silhouette contour crosses pixel rows and columns.
 
-Marching squares (``skimage.measure.find_contours``; Lorensen & Cline, SIGGRAPH 1987) puts
+Marching squares (:func:`._contours.iso_contours`, the vertices and joins of
+``skimage.measure.find_contours``; Lorensen & Cline, SIGGRAPH 1987) puts
 every contour vertex on a pixel row (between two horizontally adjacent pixel centres) or on a
 pixel column. A vertex on a row where the edge runs more vertically than horizontally seeds a
 profile along that row; a vertex on a column where the edge runs more horizontally seeds a
@@ -67,7 +68,7 @@ def seeds_from_contours(contours_rc, *, min_vertices: int = 12,
     Parameters
     ----------
     contours_rc : list of ndarray (M, 2)
-        Contours in (row, col), as ``find_contours`` returns them.
+        Contours in (row, col), as ``iso_contours`` (or ``find_contours``) returns them.
     min_vertices : int
         Contours with fewer vertices (dust, noise specks) are skipped.
     corner_turn_rad : float

@@ -264,13 +264,16 @@ def fit_steps(y, mask, direction, t, x0, s0, *, max_iter: int = 40,
     k = np.arange(W, dtype=np.float64)[None, :]
     dr = np.asarray(direction, dtype=np.float64)[:, None]
     tt = np.clip(np.asarray(t, dtype=np.float64), 0.0, 2.0)[:, None]
-    # starting levels from the ends of the valid samples (low side = dark)
-    order_lo = np.where(dr > 0, k, W - 1 - k)
-    big = 1e9
-    lo_rank = np.argsort(np.where(m > 0, order_lo, big), axis=1)[:, :3]
-    hi_rank = np.argsort(np.where(m > 0, -order_lo, big), axis=1)[:, :3]
-    B = np.take_along_axis(y, lo_rank, 1).mean(1)
-    Cc = np.take_along_axis(y, hi_rank, 1).mean(1) - B
+    # starting levels: means of the first and of the last three valid samples (the dark
+    # end is the first for a rising profile)
+    valid = m > 0
+    first3 = valid & (np.cumsum(valid, axis=1) <= 3)
+    last3 = valid & (np.cumsum(valid[:, ::-1], axis=1)[:, ::-1] <= 3)
+    mean_first = (y * first3).sum(1) / np.maximum(first3.sum(1), 1)
+    mean_last = (y * last3).sum(1) / np.maximum(last3.sum(1), 1)
+    rising = dr[:, 0] > 0
+    B = np.where(rising, mean_first, mean_last)
+    Cc = np.where(rising, mean_last, mean_first) - B
     p = np.stack([np.asarray(x0, float), B, Cc, np.maximum(np.asarray(s0, float), 0.3)], axis=1)
     p_start = p[:, 0].copy()
 
@@ -293,15 +296,13 @@ def fit_steps(y, mask, direction, t, x0, s0, *, max_iter: int = 40,
                            m if full else m[ia], r if full else r[ia])
         D = np.einsum("nii->ni", A)
         Ad = A + (lam[ia][:, None] * np.maximum(D, 1e-12))[:, :, None] * eye
-        try:
-            step = np.linalg.solve(Ad, g[:, :, None])[:, :, 0]
-        except np.linalg.LinAlgError:
-            step = np.zeros_like(g)
-            for j in range(len(ia)):
-                try:
-                    step[j] = np.linalg.solve(Ad[j], g[j])
-                except np.linalg.LinAlgError:
-                    active[ia[j]] = False
+        step, ok = _spd_solve4(Ad, g)
+        for j in np.flatnonzero(~ok):
+            try:
+                step[j] = np.linalg.solve(Ad[j], g[j])
+            except np.linalg.LinAlgError:
+                step[j] = 0.0
+                active[ia[j]] = False
         # a blur already at its lower clamp and pushed further down: solve with it held
         # (active-set step), so the edge position keeps converging at full speed
         pin = (pa[:, 3] <= _S_MIN * (1 + 1e-9)) & (step[:, 3] < 0)
@@ -311,7 +312,10 @@ def fit_steps(y, mask, direction, t, x0, s0, *, max_iter: int = 40,
             Ap[:, :, 3] = 0.0
             Ap[:, 3, 3] = 1.0
             gp[:, 3] = 0.0
-            step[pin] = np.linalg.solve(Ap, gp[:, :, None])[:, :, 0]
+            sp, okp = _spd_solve4(Ap, gp)
+            if not okp.all():
+                sp[~okp] = np.linalg.solve(Ap[~okp], gp[~okp][:, :, None])[:, :, 0]
+            step[pin] = sp
         step[:, 0] = np.clip(step[:, 0], -2.0, 2.0)
         pn = pa + step
         pn[:, 3] = np.clip(pn[:, 3], _S_MIN, 50.0)
@@ -381,12 +385,10 @@ def _polish(p, A, g, sel, cost) -> None:
     Ai[hold, 3, 3] = 1.0
     gi[hold, 3] = 0.0
     d = np.sqrt(np.maximum(np.einsum("nii->ni", Ai), 1e-300))
-    try:
-        As = Ai / d[:, :, None] / d[:, None, :]       # Jacobi scaling
-        step = np.linalg.solve(As, (gi / d)[:, :, None])[:, :, 0] / d
-    except np.linalg.LinAlgError:
-        return
-    ok = np.all(np.isfinite(step), axis=1) & (np.abs(step[:, 0]) < 10 * _TOL_X0) & (
+    As = Ai / d[:, :, None] / d[:, None, :]       # Jacobi scaling
+    step, solved = _spd_solve4(As, gi / d)
+    step /= d
+    ok = solved & np.all(np.isfinite(step), axis=1) & (np.abs(step[:, 0]) < 10 * _TOL_X0) & (
         np.abs(step[:, 3]) < 10 * _TOL_S)
     pn = p[ii[ok]] + step[ok]
     pn[:, 3] = np.clip(pn[:, 3], _S_MIN, 50.0)
@@ -397,25 +399,80 @@ def _polish(p, A, g, sel, cost) -> None:
 def _var_x0(A):
     """(A^-1)_00 of each 4 x 4 normal matrix; NaN where A is singular.
 
-    Solved on the unit-diagonal scaled matrix (Jacobi scaling); a matrix the solve cannot
-    handle, or a non-positive result, takes the pseudo-inverse instead.
+    Solved by Cholesky on the unit-diagonal scaled matrix (Jacobi scaling); a matrix that
+    factorisation refuses takes the general solve, and a non-positive result from that the
+    pseudo-inverse.
     """
-    out = np.full(A.shape[0], np.nan)
-    det_ok = np.abs(np.linalg.det(A)) > 1e-300
-    ii = np.flatnonzero(det_ok)
-    if len(ii) == 0:
-        return out
-    Ai = A[ii]
-    d = np.sqrt(np.maximum(np.einsum("nii->ni", Ai), 1e-300))
-    As = Ai / d[:, :, None] / d[:, None, :]
-    e0 = np.zeros((len(ii), 4, 1))
-    e0[:, 0, 0] = 1.0
-    try:
-        v = np.linalg.solve(As, e0)[:, 0, 0] / (d[:, 0] ** 2)
-    except np.linalg.LinAlgError:
-        v = np.full(len(ii), np.nan)
-    bad = ~(np.isfinite(v) & (v > 0))
-    if bad.any():
-        v[bad] = np.linalg.pinv(Ai[bad])[:, 0, 0]
-    out[ii] = v
+    n = A.shape[0]
+    d = np.sqrt(np.maximum(np.einsum("nii->ni", A), 1e-300))
+    As = A / d[:, :, None] / d[:, None, :]
+    e0 = np.zeros((n, 4))
+    e0[:, 0] = 1.0
+    x, ok = _spd_solve4(As, e0)
+    v = x[:, 0] / (d[:, 0] ** 2)
+    bad = ~(ok & np.isfinite(v) & (v > 0))
+    if not bad.any():
+        return v
+    # the rare matrix Cholesky refuses: the general solve, else the pseudo-inverse
+    out = np.where(bad, np.nan, v)
+    ii = np.flatnonzero(bad & (np.abs(np.linalg.det(A)) > 1e-300))
+    if len(ii):
+        Ai = A[ii]
+        di = d[ii]
+        Asi = As[ii]
+        try:
+            vi = np.linalg.solve(Asi, e0[ii][:, :, None])[:, 0, 0] / (di[:, 0] ** 2)
+        except np.linalg.LinAlgError:
+            vi = np.full(len(ii), np.nan)
+        worse = ~(np.isfinite(vi) & (vi > 0))
+        if worse.any():
+            vi[worse] = np.linalg.pinv(Ai[worse])[:, 0, 0]
+        out[ii] = vi
     return out
+
+
+def _spd_solve4(A, b):
+    """Solve A x = b for many symmetric positive definite 4 x 4 systems at once.
+
+    Cholesky factorisation written out element by element (A = L L^T, then forward and back
+    substitution; Golub & Van Loan, Matrix Computations, 4th ed., algorithm 4.2.1), which on
+    thousands of small systems is several times faster than a batched general solve.
+
+    Parameters
+    ----------
+    A : ndarray (n, 4, 4)
+    b : ndarray (n, 4)
+
+    Returns
+    -------
+    x : ndarray (n, 4)
+    ok : ndarray of bool (n,)
+        False where a pivot is not positive and finite (not positive definite to working
+        precision): solve those rows another way.
+    """
+    a = [[A[:, i, j] for j in range(4)] for i in range(4)]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        p0 = a[0][0]
+        l00 = np.sqrt(p0)
+        l10, l20, l30 = a[1][0] / l00, a[2][0] / l00, a[3][0] / l00
+        p1 = a[1][1] - l10 * l10
+        l11 = np.sqrt(p1)
+        l21 = (a[2][1] - l20 * l10) / l11
+        l31 = (a[3][1] - l30 * l10) / l11
+        p2 = a[2][2] - l20 * l20 - l21 * l21
+        l22 = np.sqrt(p2)
+        l32 = (a[3][2] - l30 * l20 - l31 * l21) / l22
+        p3 = a[3][3] - l30 * l30 - l31 * l31 - l32 * l32
+        l33 = np.sqrt(p3)
+        y0 = b[:, 0] / l00
+        y1 = (b[:, 1] - l10 * y0) / l11
+        y2 = (b[:, 2] - l20 * y0 - l21 * y1) / l22
+        y3 = (b[:, 3] - l30 * y0 - l31 * y1 - l32 * y2) / l33
+        x3 = y3 / l33
+        x2 = (y2 - l32 * x3) / l22
+        x1 = (y1 - l21 * x2 - l31 * x3) / l11
+        x0 = (y0 - l10 * x1 - l20 * x2 - l30 * x3) / l00
+    x = np.stack([x0, x1, x2, x3], axis=1)
+    ok = (p0 > 0) & (p1 > 0) & (p2 > 0) & (p3 > 0) & np.isfinite(x).all(axis=1)
+    x[~ok] = 0.0
+    return x, ok

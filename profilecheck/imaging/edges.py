@@ -4,7 +4,7 @@ Pipeline (vision-notes section 6):
 
 1. linearise the grey levels (camera gamma) and mark clipped samples (top or bottom code);
 2. flatten the backlight and seed from the 50 % contour of the flattened image
-   (:mod:`.silhouette`, :mod:`._seeds`);
+   (:mod:`.silhouette`; marching squares, :mod:`._contours`; :mod:`._seeds`);
 3. at every row (column) crossing of the contour, fit the pixel-exact blurred-step model
    (:mod:`._stepfit`) to the pixels of that row (column) of the flattened image (backlight
    divided out, so vignetting does not tilt the plateaus), with free dark level, contrast and
@@ -15,9 +15,11 @@ Pipeline (vision-notes section 6):
    contrast, or a sharp turn of the contour;
 5. normals from the neighbouring fitted points.
 
-Speed: a pilot fit of 120-300 profiles sets the blur; profiles without samples enough on
-both sides are not fitted, and a fit that runs more than 2.5 px from its seed is abandoned
-(both are rejected in step 4 in any case); ``step=k`` fits every k-th profile only.
+Speed: whole-image steps run in float32 (the profiles are fitted in float64); a pilot fit
+of 120-300 profiles sets the blur; profiles are fitted in groups of equal half-window, each
+on its own samples only; profiles without samples enough on both sides are not fitted, and
+a fit that runs more than 2.5 px from its seed is abandoned (both are rejected in step 4 in
+any case); ``step=k`` fits every k-th profile only.
 
 Least squares on the exact model is the maximum-likelihood estimate under Gaussian noise and
 reaches the Cramer-Rao bound (vision-notes sections 1.3 and 2); as the samples are the
@@ -39,7 +41,8 @@ from scipy.stats import chi2
 from ._edgeset import EdgeSet, empty_edgeset
 from ._seeds import Seeds, seeds_from_contours
 from ._stepfit import StepFits, fit_steps
-from .silhouette import _EDGE_CLEAR_PX, _all_finite, flatten_backlight, linearise
+from ._contours import iso_contours
+from .silhouette import _EDGE_CLEAR_PX, _all_finite, _flatten, linearise
 
 __all__ = ["find_edges", "EdgeSet"]
 
@@ -87,7 +90,18 @@ def _gather(img, flat, seeds: Seeds, idx, HW):
     H, Wi = img.shape
     inb = (rows >= 0) & (rows < H) & (cols >= 0) & (cols < Wi)
     rr, cc = np.clip(rows, 0, H - 1), np.clip(cols, 0, Wi - 1)
-    return img[rr, cc], flat[rr, cc], inb, rr, cc, start
+    # float64 from here on (the images may be float32): the fits and the level tests
+    return (img[rr, cc].astype(np.float64), flat[rr, cc].astype(np.float64), inb, rr, cc,
+            start)
+
+
+def _clipped(raw, rr, cc):
+    """Samples of the recorded image at the top or bottom code (clipped); ``raw`` None:
+    the image has no clipped pixel."""
+    if raw is None:
+        return np.zeros(rr.shape, dtype=bool)
+    v = raw[rr, cc]
+    return (v >= 1.0 - 1e-9) | (v <= 1e-9)
 
 
 def _window_mask(fvals, inb, hw, margin, HW):
@@ -110,8 +124,16 @@ def _window_mask(fvals, inb, hw, margin, HW):
     return m, direction
 
 
-def _fit_group(img, flat, censored, seeds, idx, sigma_b, *, hw=None, t=None, x0=None, s0=None,
+def _fit_group(img, flat, raw, seeds, idx, sigma_b, *, hw=None, t=None, x0=None, s0=None,
                max_shift=None):
+    """Fit the step model to the profiles ``idx`` of ``img`` (``flat``: the seeding image
+    for the window tests, ``raw``: the recorded image for the clipping test).
+
+    Returns ``(fits, start, direction, enough, hw, thin)``: ``fits.x0`` is in each profile's
+    own frame, whose sample 0 is pixel ``start = floor(seed) - hw`` along the profile (so
+    the edge lies at ``start + x0``, and ``x0`` can seed a later call); ``enough``: samples
+    enough on both sides; ``thin``: clipped samples had to be kept.
+    """
     n_a = seeds.n_axis[idx]
     n_o = seeds.n_other[idx]
     se = math.sqrt(sigma_b ** 2 + 1.0 / 12.0)
@@ -121,16 +143,19 @@ def _fit_group(img, flat, censored, seeds, idx, sigma_b, *, hw=None, t=None, x0=
     vals, fvals, inb, rr, cc, start = _gather(img, flat, seeds, idx, HW)
     margin = np.ceil(2.5 * se / n_a).astype(int)
     m_all, direction = _window_mask(fvals, inb, hw, margin, HW)
-    m = m_all & ~censored[rr, cc]
+    m = m_all & ~_clipped(raw, rr, cc)
     # where leaving out clipped samples leaves a side without a plateau, fall back to all
     # samples (the clipping warning then stands for a known bias toward the dark side)
     thin = ((m[:, :HW + 1].sum(1) < 3) | (m[:, HW + 1:].sum(1) < 3)) & ~(
         (m_all[:, :HW + 1].sum(1) < 3) | (m_all[:, HW + 1:].sum(1) < 3))
     m[thin] = m_all[thin]
+    # each profile's own frame: sample 0 at floor(seed) - hw (the same in every call for
+    # the same profile and half-window, so a refit can start from an earlier fit's x0)
+    start_own = start + (HW - hw)
     if t is None:
         t = n_o / n_a
     if x0 is None:
-        x0 = seeds.pos[idx] - start
+        x0 = seeds.pos[idx] - start_own
     if s0 is None:
         s0 = sigma_b / n_a
     n_left = (m[:, :HW + 1]).sum(1)
@@ -139,28 +164,33 @@ def _fit_group(img, flat, censored, seeds, idx, sigma_b, *, hw=None, t=None, x0=
     t = np.broadcast_to(np.asarray(t, dtype=np.float64), enough.shape)
     x0 = np.broadcast_to(np.asarray(x0, dtype=np.float64), enough.shape)
     s0 = np.broadcast_to(np.asarray(s0, dtype=np.float64), enough.shape)
-    if max_shift is None or enough.all():
-        res = fit_steps(vals, m, direction, t, x0, s0, max_shift=max_shift)
-    else:
-        # profiles without enough samples on both sides are rejected by every caller that
-        # passes max_shift: leave them out of the fit (results NaN, not converged)
-        ii = np.flatnonzero(enough)
-        sub = fit_steps(vals[ii], m[ii], direction[ii], t[ii], x0[ii], s0[ii],
-                        max_shift=max_shift)
-        res = _scatter_fits(sub, ii, len(enough), x0)
-    return res, start, direction, enough, hw, thin
+    # profiles without enough samples on both sides are rejected by every caller that
+    # passes max_shift: leave them out of the fit (results NaN, not converged)
+    fit_it = enough if max_shift is not None else np.ones(len(enough), dtype=bool)
+    # fit each half-window size on its own samples only (2 hw + 2 of them, from column
+    # HW - hw of the gathered rows): the same fit as on the padded rows, whose extra
+    # samples lie outside the window mask, for less work
+    groups = []
+    for h in np.unique(hw[fit_it]) if len(hw) else ():
+        ii = np.flatnonzero(fit_it & (hw == h))
+        cs = slice(HW - int(h), HW + int(h) + 2)
+        groups.append((ii, fit_steps(vals[ii, cs], m[ii, cs], direction[ii], t[ii], x0[ii],
+                                     s0[ii], max_shift=max_shift)))
+    return _scatter_fits(groups, len(enough), x0), start_own, direction, enough, hw, thin
 
 
-def _scatter_fits(sub: StepFits, ii, n: int, x0) -> StepFits:
-    def put(v, fill):
-        out = np.full(n, fill, dtype=v.dtype)
-        out[ii] = v
-        return out
+def _scatter_fits(groups, n: int, x0) -> StepFits:
+    """One StepFits of ``n`` profiles from the fits of groups ``(rows, StepFits)``;
+    profiles not fitted keep their start position, NaN values and ``converged`` False."""
     x = np.array(x0, dtype=np.float64)
-    x[ii] = sub.x0
-    return StepFits(x0=x, B=put(sub.B, np.nan), C=put(sub.C, np.nan), s=put(sub.s, np.nan),
-                    var_x0_unit=put(sub.var_x0_unit, np.nan), rss=put(sub.rss, np.nan),
-                    dof=put(sub.dof, 0.0), converged=put(sub.converged, False))
+    out = {"B": np.full(n, np.nan), "C": np.full(n, np.nan), "s": np.full(n, np.nan),
+           "var_x0_unit": np.full(n, np.nan), "rss": np.full(n, np.nan),
+           "dof": np.zeros(n), "converged": np.zeros(n, dtype=bool)}
+    for ii, sub in groups:
+        x[ii] = sub.x0
+        for key, arr in out.items():
+            arr[ii] = getattr(sub, key)
+    return StepFits(x0=x, **out)
 
 
 def _duplicates(along_x, line, pos, ok):
@@ -287,32 +317,35 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         raise ValueError(f"step must be an int >= 1, got {step!r}")
     x_off, y_off, x_end, y_end = _check_roi(roi, a.shape)
     shape = a.shape
-    a = a[y_off:y_end, x_off:x_end].astype(np.float64, copy=False)
+    # whole-image work in float32 (half the memory traffic of float64; the profiles are
+    # fitted in float64, and float32 holds 16-bit data to 6e-8 of full scale)
+    a = a[y_off:y_end, x_off:x_end].astype(np.float32, copy=False)
     warnings: list[str] = []
 
-    top = a >= 1.0 - 1e-9
-    bottom = a <= 1e-9
-    censored = top | bottom
-    f_top = np.count_nonzero(top) / top.size
-    if np.count_nonzero(bottom) / bottom.size > 0.01:
+    n_top = np.count_nonzero(a >= 1.0 - 1e-9)
+    n_bottom = np.count_nonzero(a <= 1e-9)
+    f_top = n_top / a.size
+    # the clipping test of each profile's samples needs the recorded image only if it holds
+    # a clipped pixel
+    raw = a if (n_top or n_bottom) else None
+    if n_bottom / a.size > 0.01:
         warnings.append("the dark part is clipped at zero: raise the camera's black level if "
                         "it can be set (clipped samples were left out of the edge fits)")
     # linearise copies; with gamma 1 the (read-only) input serves as it is
     lin = a if (gamma == 1.0 and not isinstance(gamma, bool)) else linearise(a, gamma)
-    sil = flatten_backlight(lin)
+    sil = _flatten(lin)
     if sil.contrast < min_contrast:
         warnings.append(f"backlight contrast {sil.contrast:.3f} is below {min_contrast:.3f}: no "
                         "silhouette to measure (check the backlight and exposure)")
         return empty_edgeset(shape, warnings)
 
     import cv2
-    from skimage.measure import find_contours
 
     fs = cv2.GaussianBlur(sil.flat, (0, 0), _SEED_SMOOTH_PX, borderType=cv2.BORDER_REPLICATE)
     # fits run on the flattened image: a smooth backlight gradient (vignetting) across a
     # profile window would otherwise tilt the bright plateau and pull the edge
     work = sil.flat
-    seeds = seeds_from_contours(find_contours(fs, _SEED_LEVEL), min_vertices=min_contour_px)
+    seeds = seeds_from_contours(iso_contours(fs, _SEED_LEVEL), min_vertices=min_contour_px)
     if step > 1:
         seeds = _every_kth(seeds, int(step))
     n_seed = len(seeds.pos)
@@ -329,7 +362,7 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     n_pilot = min(len(usable), _PILOT_N, max(_PILOT_N_MIN, len(usable) // 5))
     pilot = usable[np.linspace(0, len(usable) - 1, n_pilot).astype(int)]
     hw_p = np.full(len(pilot), _PILOT_HALF_WINDOW)
-    pr, _, _, p_enough, _, _ = _fit_group(work, fs, censored, seeds, pilot, 1.0, hw=hw_p,
+    pr, _, _, p_enough, _, _ = _fit_group(work, fs, raw, seeds, pilot, 1.0, hw=hw_p,
                                           max_shift=_MAX_SHIFT_PX)
     sb_p = pr.s * seeds.n_axis[pilot]
     good_p = pr.converged & p_enough & np.isfinite(sb_p) & (pr.C > 0.3)
@@ -337,11 +370,11 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     sigma_b = min(max(sigma_b, 0.2), 8.0)
     if 4.0 * sigma_b + 2.0 > _EDGE_CLEAR_PX:
         # blurry: fit the backlight farther from the edges, beyond their tails
-        sil = flatten_backlight(lin, clear_px=4.0 * sigma_b + 2.0)
+        sil = _flatten(lin, clear_px=4.0 * sigma_b + 2.0)
         work = sil.flat
 
     idx = np.arange(n_seed)
-    res, start, direction, enough, hw, thin = _fit_group(work, fs, censored, seeds, idx, sigma_b,
+    res, start, direction, enough, hw, thin = _fit_group(work, fs, raw, seeds, idx, sigma_b,
                                                          max_shift=_MAX_SHIFT_PX)
     fit = {"x0": res.x0.copy(), "B": res.B.copy(), "C": res.C.copy(), "s": res.s.copy(),
            "var": res.var_x0_unit.copy(), "rss": res.rss.copy(), "dof": np.maximum(res.dof, 1.0)}
@@ -384,7 +417,7 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     sel = np.abs(t_new - t_old) > 0.02
     redo = pi[sel]
     if len(redo):
-        r2, _, _, en2, _, _ = _fit_group(work, fs, censored, seeds, redo, sigma_b, hw=hw[redo],
+        r2, _, _, en2, _, _ = _fit_group(work, fs, raw, seeds, redo, sigma_b, hw=hw[redo],
                                          t=t_new[sel], x0=fit["x0"][redo], s0=fit["s"][redo],
                                          max_shift=1.0)
         good2 = r2.converged & en2 & (np.abs(r2.x0 - fit["x0"][redo]) < 0.5)
@@ -399,7 +432,8 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     seed_rc = np.where(ax_all[:, None], np.c_[seeds.line, np.round(seeds.pos)],
                        np.c_[np.round(seeds.pos), seeds.line]).astype(int)
     seed_rc = np.clip(seed_rc, 0, np.array(work.shape) - 1)
-    scale_seed = np.maximum(sil.background[seed_rc[:, 0], seed_rc[:, 1]] - sil.dark_level, 1e-9)
+    scale_seed = np.maximum(sil.background_at(seed_rc[:, 0], seed_rc[:, 1]) - sil.dark_level,
+                            1e-9)
     ok = pre & (fit["C"] >= 0.3) & (fit["C"] * scale_seed >= min_contrast)
     med_sb = float(np.median(sb[ok])) if ok.sum() >= 3 else sigma_b
     ok &= (sb <= 2.0 * med_sb + 0.5) & (sb >= 0.4 * med_sb - 0.2)
@@ -415,7 +449,9 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     # residual test, with a floor so that residuals far below any camera's noise (0.3 % of
     # the contrast, about half an 8-bit code) never reject a point (rendered, noise-free images)
     s2_test = max(pooled, _NOISE_FLOOR_REL ** 2)
-    ok &= s2 <= s2_test * chi2.ppf(_RESID_P, dof) / dof
+    # the quantile once per distinct dof (a few dozen values among thousands of profiles)
+    dof_u, dof_i = np.unique(dof, return_inverse=True)
+    ok &= s2 <= s2_test * chi2.ppf(_RESID_P, dof_u)[dof_i] / dof
 
     ok &= ~_duplicates(ax_all, seeds.line, start + fit["x0"], ok)
 

@@ -27,6 +27,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -59,7 +60,8 @@ def linearise(img, gamma: float) -> np.ndarray:
 
     Returns
     -------
-    ndarray, float64
+    ndarray
+        float32 for a float32 input, else float64.
 
     Notes
     -----
@@ -71,10 +73,11 @@ def linearise(img, gamma: float) -> np.ndarray:
         raise TypeError(f"gamma must be a number, got {type(gamma).__name__}")
     if not (gamma > 0) or not np.isfinite(gamma):
         raise ValueError(f"gamma must be finite and > 0, got {gamma!r}")
-    a = np.asarray(img, dtype=np.float64)
+    a = np.asarray(img)
+    a = a if a.dtype == np.float32 else a.astype(np.float64, copy=False)
     if gamma == 1.0:
         return a.copy()
-    return np.power(np.clip(a, 0.0, None), float(gamma))
+    return np.power(np.clip(a, 0.0, None), a.dtype.type(gamma))
 
 
 def clipping_fraction(img, *, top: float = 1.0) -> float:
@@ -112,9 +115,10 @@ class Silhouette:
     flat : ndarray (rows, cols)
         Flattened image, ~0 in the dark part, ~1 in the bright field.
     mask : ndarray of bool
-        True in the dark part (flat < 0.5).
+        True in the dark part (flat < 0.5); made when first asked for.
     background : ndarray
-        Fitted bright-field level at every pixel (same units as the input).
+        Fitted bright-field level at every pixel (same units as the input): the bilinear
+        enlargement of ``background_grid``, made when first asked for.
     dark_level : float
         Median level inside the dark part.
     contrast : float
@@ -123,15 +127,55 @@ class Silhouette:
         Otsu's threshold of ``flat`` (information only: it depends on the area ratio).
     vignetting : float
         1 - min(background) / max(background) over the image.
+    background_grid : ndarray
+        The background on a coarse grid spanning the picture (``cv2.resize`` places node j
+        at x = (j + 1/2) cols / n - 1/2), or at every pixel for a small picture.
     """
 
     flat: np.ndarray
-    mask: np.ndarray
-    background: np.ndarray
     dark_level: float
     contrast: float
     otsu_level: float
     vignetting: float
+    background_grid: np.ndarray
+
+    @cached_property
+    def mask(self) -> np.ndarray:
+        return self.flat < 0.5
+
+    @cached_property
+    def background(self) -> np.ndarray:
+        g = self.background_grid
+        rows, cols = self.flat.shape
+        if g.shape == (rows, cols):
+            return g
+        import cv2
+        return cv2.resize(g, (cols, rows), interpolation=cv2.INTER_LINEAR)
+
+    def background_at(self, rows, cols) -> np.ndarray:
+        """The background at integer pixels (``rows``, ``cols``), float64, without making
+        the full-size ``background`` (the same bilinear rule, border nodes held)."""
+        g = np.asarray(self.background_grid, dtype=np.float64)
+        r = np.asarray(rows)
+        c = np.asarray(cols)
+        if g.shape == self.flat.shape:
+            return g[r, c]
+
+        def axis(x, n_out, n_grid):
+            f = (x + 0.5) * (n_grid / n_out) - 0.5
+            i = np.floor(f).astype(np.int64)
+            w = f - i
+            low = i < 0
+            high = i >= n_grid - 1
+            i = np.where(low, 0, np.where(high, n_grid - 1, i))
+            w = np.where(low | high, 0.0, w)
+            return i, np.minimum(i + 1, n_grid - 1), w
+
+        r0, r1, wr = axis(r, self.flat.shape[0], g.shape[0])
+        c0, c1, wc = axis(c, self.flat.shape[1], g.shape[1])
+        top = g[r0, c0] * (1 - wc) + g[r0, c1] * wc
+        bottom = g[r1, c0] * (1 - wc) + g[r1, c1] * wc
+        return top * (1 - wr) + bottom * wr
 
 
 def _poly_terms(x, y, degree):
@@ -163,16 +207,16 @@ def flatten_backlight(img, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX)
     Returns
     -------
     Silhouette
+        ``flat`` and ``background`` are float32 for a float32 image (half the memory
+        traffic on a large picture; ample for 8- to 16-bit data), else float64.
 
     Raises
     ------
     ValueError
         ``img`` is not a 2-D finite array of at least 8 x 8 pixels, or ``degree`` is out of range.
     """
-    import cv2
-    from skimage.filters import threshold_otsu
-
-    a = np.asarray(img, dtype=np.float64)
+    a = np.asarray(img)
+    a = a if a.dtype == np.float32 else a.astype(np.float64, copy=False)
     if a.ndim != 2:
         raise ValueError(f"img must be 2-D, got ndim={a.ndim}")
     if min(a.shape) < 8:
@@ -183,21 +227,31 @@ def flatten_backlight(img, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX)
         raise ValueError(f"degree must be an int in 2..6, got {degree!r}")
     if not (clear_px >= 0) or not math.isfinite(clear_px):
         raise ValueError(f"clear_px must be finite and >= 0, got {clear_px!r}")
+    return _flatten(a, degree=degree, clear_px=clear_px)
+
+
+def _flatten(a: np.ndarray, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX) -> Silhouette:
+    """:func:`flatten_backlight` without the checks of ``a`` (2-D, finite, float32/64)."""
+    import cv2
+    from skimage.filters import threshold_otsu
+
     rows, cols = a.shape
-    f = min(1.0, _REDUCED_LONG_SIDE / max(rows, cols))
-    small = cv2.resize(a, (max(8, round(cols * f)), max(8, round(rows * f))),
-                       interpolation=cv2.INTER_AREA) if f < 1 else a
+    # reduced copy: means of k x k blocks, k the whole number that brings the long side to
+    # about _REDUCED_LONG_SIDE (an integer factor is OpenCV's fast area path); the last
+    # rows % k and cols % k pixels are left out of the fit only
+    k = max(1, min(-(-max(rows, cols) // _REDUCED_LONG_SIDE), min(rows, cols) // 8))
+    sr, sc = rows // k, cols // k
+    small = (cv2.resize(a[:sr * k, :sc * k], (sc, sr), interpolation=cv2.INTER_AREA) if k > 1
+             else a).astype(np.float64)
     if np.ptp(small) <= 0:
-        flat = np.ones_like(a)
-        return Silhouette(flat=flat, mask=np.zeros(a.shape, bool), background=a.copy(),
-                          dark_level=float(a.mean()), contrast=0.0, otsu_level=0.5,
-                          vignetting=0.0)
+        return Silhouette(flat=np.ones_like(a), dark_level=float(a.mean()), contrast=0.0,
+                          otsu_level=0.5, vignetting=0.0, background_grid=a.copy())
     t0 = threshold_otsu(small)
     bright0 = small > t0
     dark0 = ~bright0
     # keep away from edges: erode both classes by _EDGE_CLEAR_PX full-resolution pixels
     # (at least 2 reduced pixels), beyond the blurred tails of any focused edge
-    rad = max(2, int(math.ceil(clear_px * f)))
+    rad = max(2, int(math.ceil(clear_px / k)))
     kern = cv2.getStructuringElement(cv2.MORPH_ELLIPSE, (2 * rad + 1, 2 * rad + 1))
     bright_core = cv2.erode(bright0.astype(np.uint8), kern).astype(bool)
     dark_core = cv2.erode(dark0.astype(np.uint8), kern).astype(bool)
@@ -205,10 +259,10 @@ def flatten_backlight(img, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX)
         bright_core = bright0
     if dark_core.sum() < 5:
         dark_core = dark0
-    sr, sc = small.shape
+    # x, y scaled to [-1, 1] over the whole picture, at the block centres
     yy, xx = np.mgrid[0:sr, 0:sc]
-    xn = (xx + 0.5) / sc * 2 - 1
-    yn = (yy + 0.5) / sr * 2 - 1
+    xn = (xx + 0.5) * k / cols * 2 - 1
+    yn = (yy + 0.5) * k / rows * 2 - 1
     frac = bright_core.mean()
     deg = degree if frac > 0.4 else (min(degree, 3) if frac > 0.15 else 2)
     T = _poly_terms(xn, yn, deg)
@@ -229,11 +283,18 @@ def flatten_backlight(img, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX)
             break
         use = new
     dark_level = float(np.median(small[dark_core])) if dark_core.any() else float(small.min())
-    if coef is None:
-        bg_small = np.full_like(small, float(np.median(small[bright0])))
-    else:
-        bg_small = T @ coef
     bright_med = float(np.median(small[bright0]))
+    # the background on a coarse grid spanning the whole picture, for the bilinear
+    # enlargement (cv2.resize puts grid node j at full-size x = (j + 1/2) cols / n - 1/2)
+    f = min(1.0, _REDUCED_LONG_SIDE / max(rows, cols))
+    gr, gc = (max(8, round(rows * f)), max(8, round(cols * f))) if k > 1 else (rows, cols)
+    gy, gx = np.mgrid[0:gr, 0:gc]
+    if coef is None:
+        bg_fit = np.full_like(small, bright_med)
+        bg_small = np.full((gr, gc), bright_med)
+    else:
+        bg_fit = T @ coef
+        bg_small = _poly_terms((gx + 0.5) / gc * 2 - 1, (gy + 0.5) / gr * 2 - 1, deg) @ coef
     # the polynomial is trusted near the field; clamp wild extrapolation over the part
     floor = dark_level + 0.5 * (bright_med - dark_level)
     # and over a bright strip too narrow for the clearance (an edge a few px from the image
@@ -244,20 +305,24 @@ def flatten_backlight(img, *, degree: int = 2, clear_px: float = _EDGE_CLEAR_PX)
     bright_max = float(np.max(small[bright0]))
     ceiling = dark_level + _BG_CEILING_REL * (bright_max - dark_level)
     bg_small = np.clip(bg_small, floor, max(ceiling, floor))
-    bg = cv2.resize(bg_small, (cols, rows), interpolation=cv2.INTER_LINEAR) if f < 1 else bg_small
-    # in place: one full-size temporary for the denominator, freed on return
-    denom = np.subtract(bg, dark_level)
-    np.maximum(denom, 1e-9, out=denom)
-    flat = np.subtract(a, dark_level)
+    bg_fit = np.clip(bg_fit, floor, max(ceiling, floor))
+    bg_small_a = bg_small.astype(a.dtype)
+    # the denominator background - dark enlarged from the grid (bilinear weights sum to
+    # one, so this is the enlarged background less the dark level); one full-size
+    # temporary, freed on return
+    den_small = np.maximum(bg_small - dark_level, 1e-9).astype(a.dtype)
+    denom = (cv2.resize(den_small, (cols, rows), interpolation=cv2.INTER_LINEAR) if k > 1
+             else den_small)
+    flat = np.subtract(a, a.dtype.type(dark_level))
     flat /= denom
     del denom
     contrast = float(np.median(bg_small - dark_level))
     try:
         # on the reduced copy, flattened by the reduced background (information only)
-        otsu = float(threshold_otsu((small - dark_level) / np.maximum(bg_small - dark_level, 1e-9)
-                                    if f < 1 else flat))
+        otsu = float(threshold_otsu((small - dark_level) / np.maximum(bg_fit - dark_level, 1e-9)
+                                    if k > 1 else flat))
     except ValueError:
         otsu = 0.5
     vig = 1.0 - float(bg_small.min() / bg_small.max()) if bg_small.max() > 0 else 0.0
-    return Silhouette(flat=flat, mask=flat < 0.5, background=bg, dark_level=dark_level,
-                      contrast=contrast, otsu_level=otsu, vignetting=vig)
+    return Silhouette(flat=flat, dark_level=dark_level, contrast=contrast, otsu_level=otsu,
+                      vignetting=vig, background_grid=bg_small_a)

@@ -66,7 +66,7 @@ MAX_BLUR_PX = 4.0
 def _load(image: Any) -> tuple[np.ndarray, str | None]:
     if isinstance(image, (str, os.PathLike)):
         from ..imaging import load_image
-        return load_image(image), os.fspath(image)
+        return load_image(image, dtype=np.float32), os.fspath(image)
     if isinstance(image, np.ndarray):
         if image.ndim != 2:
             raise ValueError(f"image must be a 2-D grey array, got shape {image.shape}")
