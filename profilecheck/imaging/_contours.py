@@ -120,7 +120,10 @@ def iso_contours(img: np.ndarray, level: float) -> list[np.ndarray]:
     cr = np.concatenate([hr, hr - 1, vr, vr])
     cc = np.concatenate([hc, hc, vc, vc - 1])
     inside = (cr >= 0) & (cr < rows - 1) & (cc >= 0) & (cc < cols - 1)
-    cell = np.unique(cr[inside] * (cols - 1) + cc[inside])
+    # the distinct cells in raster order: marks in a flag per cell (faster than np.unique)
+    marks = np.zeros((rows - 1) * (cols - 1), dtype=bool)
+    marks[cr[inside] * (cols - 1) + cc[inside]] = True
+    cell = np.flatnonzero(marks)
     r0, c0 = np.divmod(cell, cols - 1)
     case = (hi[r0, c0].astype(np.int64) | (hi[r0, c0 + 1] << 1) | (hi[r0 + 1, c0] << 2)
             | (hi[r0 + 1, c0 + 1] << 3))
@@ -142,6 +145,10 @@ def iso_contours(img: np.ndarray, level: float) -> list[np.ndarray]:
     nxt[f_idx] = t_idx
     has_prev = np.zeros(n, dtype=bool)
     has_prev[t_idx] = True
+    if np.bincount(t_idx, minlength=n).max() > 1 or np.bincount(f_idx, minlength=n).max() > 1:
+        # a vertex entered or left twice cannot happen with values off the level; be safe
+        from skimage.measure import find_contours
+        return find_contours(a, level)
     # raster position of the cell where each vertex's outgoing join lies (contour order)
     out_cell = np.full(n, np.iinfo(np.int64).max)
     np.minimum.at(out_cell, f_idx, seg_cell)
@@ -168,6 +175,9 @@ def iso_contours(img: np.ndarray, level: float) -> list[np.ndarray]:
             path = [s]
             j = nxt_l[s]
             while j != s:
+                if j < 0 or len(path) > n:  # not a loop: the map is not one-to-one
+                    from skimage.measure import find_contours
+                    return find_contours(a, level)
                 path.append(j)
                 j = nxt_l[j]
             p = np.array(path)

@@ -8,7 +8,8 @@ Pipeline (vision-notes section 6):
 3. at every row (column) crossing of the contour, fit the pixel-exact blurred-step model
    (:mod:`._stepfit`) to the pixels of that row (column) of the flattened image (backlight
    divided out, so vignetting does not tilt the plateaus), with free dark level, contrast and
-   blur; window 2 x 5 sigma_e along the normal, at least 16 samples, cut short before a
+   blur and the pixel-box shape from the seed contour's local direction; window
+   2 x 5 sigma_e along the normal, at least 16 samples, cut short before a
    neighbouring edge; clipped samples left out;
 4. reject profiles where the 1-D model does not hold (corners, junctions, narrow gaps):
    high residual, blur far from the image's, position run away from the seed, too little
@@ -16,7 +17,7 @@ Pipeline (vision-notes section 6):
 5. normals from the neighbouring fitted points.
 
 Speed: whole-image steps run in float32 (the profiles are fitted in float64); a pilot fit
-of 120-300 profiles sets the blur; profiles are fitted in groups of equal half-window, each
+of 120-150 profiles sets the blur; profiles are fitted in groups of equal half-window, each
 on its own samples only; profiles without samples enough on both sides are not fitted, and
 a fit that runs more than 2.5 px from its seed is abandoned (both are rejected in step 4 in
 any case); ``step=k`` fits every k-th profile only.
@@ -40,7 +41,7 @@ from scipy.stats import chi2
 
 from ._edgeset import EdgeSet, empty_edgeset
 from ._seeds import Seeds, seeds_from_contours
-from ._stepfit import StepFits, fit_steps
+from ._stepfit import _FOLD_T_OVER_S, StepFits, fit_steps
 from ._contours import iso_contours
 from .silhouette import _EDGE_CLEAR_PX, _all_finite, _flatten, linearise
 
@@ -53,7 +54,7 @@ _SEED_LEVEL = 0.5 - 1e-9
 _MIN_HALF_WINDOW = 7       # 2 * 7 + 2 = 16 samples >= 15 (vision-notes section 6, rule 1)
 _MAX_HALF_WINDOW = 40
 _PILOT_HALF_WINDOW = 12
-_PILOT_N = 300
+_PILOT_N = 150
 _PILOT_N_MIN = 120
 _NU_POOL = 10.0            # prior degrees of freedom of the pooled noise in each point's std
 _RESID_P = 0.999           # chi-square quantile for the residual test
@@ -170,12 +171,18 @@ def _fit_group(img, flat, raw, seeds, idx, sigma_b, *, hw=None, t=None, x0=None,
     # fit each half-window size on its own samples only (2 hw + 2 of them, from column
     # HW - hw of the gathered rows): the same fit as on the padded rows, whose extra
     # samples lie outside the window mask, for less work
+    # and apart where the model folds the second pixel box (near-axis edges, _stepfit),
+    # so that each call evaluates one form of the model
+    fold = t < _FOLD_T_OVER_S * s0
     groups = []
     for h in np.unique(hw[fit_it]) if len(hw) else ():
-        ii = np.flatnonzero(fit_it & (hw == h))
-        cs = slice(HW - int(h), HW + int(h) + 2)
-        groups.append((ii, fit_steps(vals[ii, cs], m[ii, cs], direction[ii], t[ii], x0[ii],
-                                     s0[ii], max_shift=max_shift)))
+        for f in (False, True):
+            ii = np.flatnonzero(fit_it & (hw == h) & (fold == f))
+            if len(ii) == 0:
+                continue
+            cs = slice(HW - int(h), HW + int(h) + 2)
+            groups.append((ii, fit_steps(vals[ii, cs], m[ii, cs], direction[ii], t[ii],
+                                         x0[ii], s0[ii], max_shift=max_shift)))
     return _scatter_fits(groups, len(enough), x0), start_own, direction, enough, hw, thin
 
 
@@ -357,8 +364,9 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     usable = np.flatnonzero(~seeds.corner)
     if len(usable) == 0:
         usable = np.arange(n_seed)
-    # a fifth of the profiles, 120 to 300 of them: the median blur of 120 is within ~1 % of
-    # the image's, and a small search box (live view) does not pay for a large pilot
+    # a fifth of the profiles, 120 to 150 of them: the median blur of 120 is within ~1 % of
+    # the image's (it sets only the window lengths and the starting blur), and a small
+    # search box (live view) does not pay for a large pilot
     n_pilot = min(len(usable), _PILOT_N, max(_PILOT_N_MIN, len(usable) // 5))
     pilot = usable[np.linspace(0, len(usable) - 1, n_pilot).astype(int)]
     hw_p = np.full(len(pilot), _PILOT_HALF_WINDOW)
@@ -409,24 +417,11 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
     nrm[bad_n] = fallback[bad_n]
     normal_all[pi] = nrm
 
-    # 3. refit where the refined normal changes the pixel-box shape noticeably (sharp edges
-    #    are sensitive to it); keep the refit only where it stays put
-    t_new = np.abs(np.where(axk, nrm[:, 1], nrm[:, 0])) / np.maximum(
-        np.abs(np.where(axk, nrm[:, 0], nrm[:, 1])), 1e-9)
-    t_old = seeds.n_other[pi] / seeds.n_axis[pi]
-    sel = np.abs(t_new - t_old) > 0.02
-    redo = pi[sel]
-    if len(redo):
-        r2, _, _, en2, _, _ = _fit_group(work, fs, raw, seeds, redo, sigma_b, hw=hw[redo],
-                                         t=t_new[sel], x0=fit["x0"][redo], s0=fit["s"][redo],
-                                         max_shift=1.0)
-        good2 = r2.converged & en2 & (np.abs(r2.x0 - fit["x0"][redo]) < 0.5)
-        gi = redo[good2]
-        fit["x0"][gi], fit["B"][gi], fit["C"][gi] = r2.x0[good2], r2.B[good2], r2.C[good2]
-        fit["s"][gi], fit["var"][gi] = r2.s[good2], r2.var_x0_unit[good2]
-        fit["rss"][gi], fit["dof"][gi] = r2.rss[good2], np.maximum(r2.dof[good2], 1.0)
+    # (the pixel-box shape of each fit keeps the seed contour's direction: refitting with
+    # these fitted normals changed no result of the edge, pin, tool or thread benchmarks,
+    # measured when that refit was dropped)
 
-    # 4. quality: contrast, blur like its neighbours', residual like the image's noise
+    # 3. quality: contrast, blur like its neighbours', residual like the image's noise
     n_a = seeds.n_axis
     sb = fit["s"] * n_a
     seed_rc = np.where(ax_all[:, None], np.c_[seeds.line, np.round(seeds.pos)],

@@ -33,32 +33,33 @@ def build_overlays(limbs: dict[str, tp.LimbProfile], frame: AxisFrame, scale: fl
     out: list[Any] = []
     if both:
         out.append(InfiniteLine(_pt(frame.o), _pt(np.asarray(frame.u)), "axis"))
+    profiles: dict[tuple[str, int], np.ndarray | None] = {}  # spec polylines, per call
     for name, limb in limbs.items():
         top = name == "top"
         crest = np.mean([c.level for c in limb.crests]) if limb.crests else None
         root = np.mean([r.level for r in limb.roots]) if limb.roots else None
         if crest is None or root is None:
             continue
+        # every segment end of this edge (flanks, then crests, then roots), mapped at once
+        ends: list[list[float]] = []
         for f in limb.flanks:
-            ends = np.array([[f.line.x_at(root), root], [f.line.x_at(crest), crest]])
-            p = limb_to_image(ends, frame, scale, top)
-            out.append(Segment(_pt(p[0]), _pt(p[1]), "fit"))
+            ends += [[f.line.x_at(root), root], [f.line.x_at(crest), crest]]
         left = {f.index: f.line for f in limb.flanks if f.side == "left"}
         right = {f.index: f.line for f in limb.flanks if f.side == "right"}
         for c in limb.crests:
             if math.isfinite(c.width) and c.index in left and c.index in right:
-                ends = np.array([[left[c.index].x_at(c.level), c.level],
-                                 [right[c.index].x_at(c.level), c.level]])
-                p = limb_to_image(ends, frame, scale, top)
-                out.append(Segment(_pt(p[0]), _pt(p[1]), "fit"))
+                ends += [[left[c.index].x_at(c.level), c.level],
+                         [right[c.index].x_at(c.level), c.level]]
         for r in limb.roots:
             if math.isfinite(r.width) and r.index in right and r.index + 1 in left:
-                ends = np.array([[right[r.index].x_at(r.level), r.level],
-                                 [left[r.index + 1].x_at(r.level), r.level]])
-                p = limb_to_image(ends, frame, scale, top)
-                out.append(Segment(_pt(p[0]), _pt(p[1]), "fit"))
+                ends += [[right[r.index].x_at(r.level), r.level],
+                         [left[r.index + 1].x_at(r.level), r.level]]
+        if ends:
+            p = limb_to_image(np.array(ends, float), frame, scale, top)[:, :2].tolist()
+            out.extend(Segment(tuple(p[i]), tuple(p[i + 1]), "fit")
+                       for i in range(0, len(p), 2))
         if spec is not None and limb.crests:
-            out.extend(_envelope(limb, frame, scale, spec, top, both))
+            out.extend(_envelope(limb, frame, scale, spec, top, both, profiles))
     h, w = shape[:2]
     words = {"pass": "PASS", "fail": "FAIL", "undecided": "UNDECIDED", "none": "measured"}
     style = verdict if verdict in ("pass", "fail", "undecided") else "info"
@@ -69,20 +70,29 @@ def build_overlays(limbs: dict[str, tp.LimbProfile], frame: AxisFrame, scale: fl
 
 
 def _envelope(limb: tp.LimbProfile, frame: AxisFrame, scale: float, spec: Any, top: bool,
-              both: bool) -> list[Any]:
+              both: bool, profiles: dict | None = None) -> list[Any]:
     """Max- and min-material axial profiles laid over the edge, aligned on the pitch line
     (axially on the first crest centre, radially on the axis or, with one edge, on the
-    measured pitch line)."""
+    measured pitch line). ``profiles`` caches the spec's polylines by (material, pitches)
+    between the two edges of one call (None: no cache)."""
     out = []
+    profiles = {} if profiles is None else profiles
     x0 = float(min(c.x for c in limb.crests))
     n = max(1, int(round((max(c.x for c in limb.crests) - x0) / spec.pitch_mm)))
     for material, style in (("max", "envelope_max"), ("min", "envelope_min")):
-        try:
-            prof = np.asarray(spec.axial_profile(material, n_pitch=n), float)
-        except Exception:  # a spec without a drawable profile must not stop the report
+        if (material, n) not in profiles:
+            try:
+                profiles[material, n] = np.asarray(spec.axial_profile(material, n_pitch=n),
+                                                   float)
+            except Exception:  # a spec without a drawable profile must not stop the report
+                profiles[material, n] = None
+        prof = profiles[material, n]
+        if prof is None:
             continue
         y = prof[:, 1] if both else prof[:, 1] - 0.5 * spec.pitch_diameter_mm + limb.pitch_line_y
-        pts = limb_to_image(np.column_stack([prof[:, 0] + x0, y]), frame, scale, top)
-        # tolist() gives the same Python floats as float() per element, in one pass
-        out.append(Polyline(tuple(map(tuple, np.asarray(pts, float)[:, :2].tolist())), style))
+        pts = np.asarray(limb_to_image(np.column_stack([prof[:, 0] + x0, y]), frame, scale,
+                                       top), float)
+        # tolist() gives the same Python floats as float() per element, in one pass; zip
+        # pairs them into the point tuples without a list per point
+        out.append(Polyline(tuple(zip(pts[:, 0].tolist(), pts[:, 1].tolist())), style))
     return out

@@ -30,8 +30,9 @@ from typing import Callable
 import numpy as np
 
 from ..errors import MeasurementError, QualityError
-from ._lines import FlankLine, fit_circle_lsq, fit_flank_line, fit_level
-from ._thread_stats import median1d, quantile1d
+from ._lines import FlankLine, fit_circle_lsq, fit_flank_lines, fit_level
+from ._thread_stats import (median1d, quantile1d, quantiles1d, segment_median, segment_quantile,
+                            sorted_segments)
 
 __all__ = ["Flank", "Flat", "LimbProfile", "analyse_limb", "find_crossings", "flat_sag",
            "MIN_FULL_TEETH"]
@@ -40,7 +41,9 @@ __all__ = ["Flank", "Flat", "LimbProfile", "analyse_limb", "find_crossings", "fl
 MIN_FULL_TEETH = 3
 
 #: ``shift(x_mm, y_mm, side) -> axial shift (mm)`` of a flank point *outward from its tooth*
-#: in the image; the analysis moves each flank point back by it (helix correction).
+#: in the image; the analysis moves each flank point back by it (helix correction). It is
+#: called once per side with the points of all that side's flanks, so it must act point by
+#: point.
 FlankShift = Callable[[np.ndarray, np.ndarray, str], np.ndarray]
 #: ``arc_shift(x_mm, y_mm, slope) -> dx (mm)`` to add to points of a rounded crest or root
 #: whose local profile slope d(y)/dx is ``slope`` (helix correction of arcs).
@@ -159,19 +162,21 @@ def find_crossings(x: np.ndarray, y: np.ndarray, level: float,
     st = definite[idx]
     change = np.flatnonzero(st[1:] != st[:-1])
     sgn = np.sign(y - level)
-    out: list[tuple[float, int]] = []
-    for c in change:
-        j, m = idx[c], idx[c + 1]
-        seg = sgn[j:m + 1]
-        flips = np.flatnonzero(seg[1:] != seg[:-1])
-        if flips.size == 0:
-            continue
-        i = j + int(flips[-1])
-        y0, y1 = y[i] - level, y[i + 1] - level
-        t = 0.5 if y1 == y0 else y0 / (y0 - y1)
-        t = min(max(t, 0.0), 1.0)
-        out.append((float(x[i] + t * (x[i + 1] - x[i])), int(st[c + 1])))
-    return out
+    # the last sign change between the two definite points j < m of each change: the
+    # largest flip i (sgn[i] != sgn[i + 1]) with j <= i < m
+    flips = np.flatnonzero(sgn[1:] != sgn[:-1])
+    j, m = idx[change], idx[change + 1]
+    p = np.searchsorted(flips, m, side="left") - 1
+    found = p >= 0
+    found[found] = flips[p[found]] >= j[found]
+    i = flips[p[found]]
+    kind = st[change + 1][found]
+    y0, y1 = y[i] - level, y[i + 1] - level
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = np.where(y1 == y0, 0.5, y0 / (y0 - y1))
+    t = np.minimum(np.maximum(t, 0.0), 1.0)
+    xc = x[i] + t * (x[i + 1] - x[i])
+    return list(zip(xc.tolist(), kind.tolist()))
 
 
 def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float = 0.0,
@@ -198,7 +203,8 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
     flank_shift : callable or None
         Helix / line-of-sight model: the image position of each flank point is moved back
         toward its tooth by ``flank_shift(x, y, side)`` before the line fit (NaN drops the
-        point: its outline is not drawn by the flank).
+        point: its outline is not drawn by the flank); called once per side on the points
+        of all that side's flanks (:data:`FlankShift`).
     root_hidden : callable or None
         ``root_hidden(x_mm, level_mm) -> mm``: how far in from each end a flat root is
         hidden from the line of sight by the flanks beside it (an inclined ray clears the
@@ -226,12 +232,14 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
         raise ValueError(f"xy_mm must have shape (N, 2), got {xy.shape}")
     if not (sigma_e_mm > 0 and math.isfinite(sigma_e_mm)):
         raise ValueError(f"sigma_e_mm must be positive, got {sigma_e_mm!r}")
-    xy = xy[np.all(np.isfinite(xy), axis=1)]
+    finite = np.isfinite(xy[:, 0]) & np.isfinite(xy[:, 1])
+    if not finite.all():
+        xy = xy[finite]
     if len(xy) < 20:
         raise MeasurementError("too few edge points along the thread edge to find any teeth")
     order = np.argsort(xy[:, 0], kind="stable")
     x, y = xy[order, 0], xy[order, 1]
-    hi, lo = quantile1d(y, 0.98), quantile1d(y, 0.02)
+    hi, lo = quantiles1d(y, (0.98, 0.02))
     depth0 = float(hi - lo)
     if depth0 < 6 * sigma_e_mm:
         raise MeasurementError("no thread teeth found along this edge (the outline is almost "
@@ -250,48 +258,77 @@ def analyse_limb(xy_mm: np.ndarray, *, sigma_e_mm: float, crest_drop_mm: float =
     ck = np.array([c[1] for c in cross])
     # Provisional level of each region between crossings (crest after a rising crossing).
     bounds = np.concatenate([[x[0] - 1.0], cx, [x[-1] + 1.0]])
-    levels = []
-    for r in range(len(bounds) - 1):
-        sel = (x > bounds[r]) & (x < bounds[r + 1])
-        # region r lies before crossing r: crest if crossing r is falling.
-        is_crest = bool(ck[r] < 0) if r < len(ck) else bool(ck[-1] > 0)
-        if sel.sum() >= 3:
-            levels.append(float(quantile1d(y[sel], 0.9 if is_crest else 0.1)))
-        else:
-            levels.append(float(hi if is_crest else lo))
-    levels_arr = np.array(levels)
+    # x is sorted: the points strictly between two bounds are one slice
+    r_lo = np.searchsorted(x, bounds[:-1], side="right")
+    r_hi = np.searchsorted(x, bounds[1:], side="left")
+    # region r lies before crossing r: crest if crossing r is falling.
+    is_crest = np.append(ck < 0, ck[-1] > 0)
+    levels_arr = np.where(is_crest, float(hi), float(lo))
+    r = np.flatnonzero(r_hi - r_lo >= 3)
+    if r.size:
+        pos, seg = _gather(r_lo[r], r_hi[r])
+        rows, count = sorted_segments(y[pos], seg, r.size)
+        top = is_crest[r]
+        levels_arr[r[top]] = segment_quantile(rows[top], count[top], 0.9)
+        levels_arr[r[~top]] = segment_quantile(rows[~top], count[~top], 0.1)
 
     m_crest = 3.0 * sigma_e_mm + crest_drop_mm
     m_root = 3.0 * sigma_e_mm + root_drop_mm
     flanks: list[Flank] = []
-    for k, (xc, kind) in enumerate(cross):
-        side = "left" if kind > 0 else "right"
-        before, after = levels_arr[k], levels_arr[k + 1]
-        hi_loc, lo_loc = (after, before) if kind > 0 else (before, after)
-        band_lo, band_hi = lo_loc + m_root, hi_loc - m_crest
-        if band_hi - band_lo < 4 * sigma_e_mm:
-            raise QualityError(
-                "the flanks are too short for this blur once the rounded crest and root "
-                "corners are left out: refocus, or use more magnification")
-        # Window: from the middle of the flat before to the middle of the flat after.
-        xa = 0.5 * (cx[k - 1] + xc) if k > 0 else xc - 0.25 * p_est
-        xb = 0.5 * (cx[k + 1] + xc) if k + 1 < len(cx) else xc + 0.25 * p_est
-        i0, i1 = np.searchsorted(x, [xa, xb])  # x is sorted: slice the window first
-        wx, wy = x[i0:i1], y[i0:i1]
-        sel = (wy > band_lo) & (wy < band_hi)
-        if sel.sum() < 5:
-            continue
-        px, py = wx[sel], wy[sel]
-        if float(py.max() - py.min()) < 0.6 * (band_hi - band_lo):
-            continue  # flank cut by the end of the edge or by damage: not a whole flank
-        if flank_shift is not None:
-            s = np.asarray(flank_shift(px, py, side), dtype=float)
-            ok = np.isfinite(s)  # NaN: the outline point is not drawn by the flank
-            if ok.sum() < 5:
-                continue
-            px, py, s = px[ok], py[ok], s[ok]
-            px = px + s if side == "left" else px - s
-        line = fit_flank_line(np.column_stack([px, py]))
+    # flank windows, from the middle of the flat before to the middle of the flat after
+    w_a = np.empty(len(cx))
+    w_b = np.empty(len(cx))
+    w_a[1:] = 0.5 * (cx[:-1] + cx[1:])
+    w_b[:-1] = w_a[1:]
+    w_a[0] = cx[0] - 0.25 * p_est
+    w_b[-1] = cx[-1] + 0.25 * p_est
+    win_lo = np.searchsorted(x, w_a)
+    win_hi = np.searchsorted(x, w_b)
+    # Band of each flank clear of the crest and root corners (levels before / after).
+    rise = ck > 0
+    before, after = levels_arr[:-1], levels_arr[1:]
+    band_lo = np.where(rise, before, after) + m_root
+    band_hi = np.where(rise, after, before) - m_crest
+    if np.any(band_hi - band_lo < 4 * sigma_e_mm):
+        raise QualityError(
+            "the flanks are too short for this blur once the rounded crest and root "
+            "corners are left out: refocus, or use more magnification")
+    # Points of every window inside its band, gathered at once (window k is the slice
+    # win_lo[k]:win_hi[k] of the sorted points).
+    n_win = win_hi - win_lo
+    pos = np.arange(int(n_win.sum())) - np.repeat(np.cumsum(n_win) - n_win - win_lo, n_win)
+    seg = np.repeat(np.arange(len(cx)), n_win)
+    wy = y[pos]
+    sel = (wy > band_lo[seg]) & (wy < band_hi[seg])
+    pos, seg = pos[sel], seg[sel]
+    count = np.bincount(seg, minlength=len(cx))
+    y_span = np.full(len(cx), -np.inf)
+    if pos.size:
+        y_top = np.full(len(cx), -np.inf)
+        y_bot = np.full(len(cx), np.inf)
+        np.maximum.at(y_top, seg, y[pos])
+        np.minimum.at(y_bot, seg, y[pos])
+        y_span = y_top - y_bot
+    # fewer than 5 points, or spanning < 60 % of the band: the flank is cut by the end of
+    # the edge or by damage, not a whole flank
+    whole = (count >= 5) & ~(y_span < 0.6 * (band_hi - band_lo))
+    keep = whole[seg]
+    pos, seg = pos[keep], seg[keep]
+    f_x, f_y = x[pos], y[pos]
+    if flank_shift is not None:
+        # the shift is per point: one call per side for all of that side's flanks
+        for side, on in (("left", rise[seg]), ("right", ~rise[seg])):
+            if on.any():
+                sh = np.asarray(flank_shift(f_x[on], f_y[on], side), dtype=float)
+                f_x[on] = f_x[on] + sh if side == "left" else f_x[on] - sh
+        ok = np.isfinite(f_x)  # NaN: the outline point is not drawn by the flank
+        whole &= np.bincount(seg[ok], minlength=len(cx)) >= 5
+        ok &= whole[seg]
+        f_x, f_y, seg = f_x[ok], f_y[ok], seg[ok]
+    f_seg = np.cumsum(whole)[seg] - 1  # flanks renumbered 0 .. n - 1
+    sides = [(int(k), "left" if ck[k] > 0 else "right") for k in np.flatnonzero(whole)]
+    lines = fit_flank_lines(f_x, f_y, f_seg, len(sides)) if sides else []
+    for (k, side), line in zip(sides, lines):
         ang = math.atan(line.k) if side == "left" else math.atan(-line.k)
         std_ang = line.std_k / (1.0 + line.k ** 2)
         flanks.append(Flank(side, 0, line, ang, std_ang))
@@ -413,15 +450,18 @@ def _dedupe(flanks: list[Flank]) -> list[Flank]:
 def _fit_pitch(flanks: list[Flank], y_ref: float, exclude: set[int]):
     """Common pitch slope of flank position vs tooth number, separate side intercepts."""
     rows, xs = [], []
+    xl: dict[int, float] = {}
+    xr: dict[int, float] = {}
     for f in flanks:
         if f.index in exclude:
             continue
         rows.append((f.index, 1.0 if f.side == "left" else 0.0, 0.0 if f.side == "left" else 1.0))
         xs.append(float(f.line.x_at(y_ref)))
+        (xl if f.side == "left" else xr)[f.index] = xs[-1]
     a = np.array(rows, dtype=float)
     b = np.array(xs)
-    have_l, have_r = a[:, 1].sum() > 0, a[:, 2].sum() > 0
-    if len(b) < 3 or len(np.unique(a[:, 0])) < 2:
+    have_l, have_r = bool(xl), bool(xr)
+    if len(b) < 3 or len({r[0] for r in rows}) < 2:
         raise QualityError("too few whole flanks to find the pitch: at least "
                            f"{MIN_FULL_TEETH} complete teeth must be in view")
     cols = [0] + ([1] if have_l else []) + ([2] if have_r else [])
@@ -438,12 +478,10 @@ def _fit_pitch(flanks: list[Flank], y_ref: float, exclude: set[int]):
     aL = float(sol[1]) if have_l else float("nan")
     aR = float(sol[cols.index(2)]) if have_r else float("nan")
     per = []
-    xl = {f.index: float(f.line.x_at(y_ref)) for f in flanks if f.side == "left" and f.index not in exclude}
-    xr = {f.index: float(f.line.x_at(y_ref)) for f in flanks if f.side == "right" and f.index not in exclude}
     for i in sorted(set(xl) | set(xr)):
         d = [m[i + 1] - m[i] for m in (xl, xr) if i in m and i + 1 in m]
-        if d:
-            per.append(float(np.mean(d)))
+        if d:  # the mean of one or two values, as np.mean takes it
+            per.append(d[0] if len(d) == 1 else (d[0] + d[1]) / 2.0)
     if not have_l or not have_r:
         aL = aL if have_l else aR - 0.5 * pitch
         aR = aR if have_r else aL + 0.5 * pitch
@@ -460,30 +498,142 @@ def _fit_flats(x, y, flanks, levels, cross, sigma_e, m_crest, m_root, radiused_c
                              or [levels.max()]))
     lo_all = float(median1d([lv for lv, k in zip(levels[1:], [c[1] for c in cross]) if k < 0]
                              or [levels.min()]))
-    for i in sorted(left):
-        if i in right:
-            crests.append(_one_flat("crest", i, x, y, left[i], right[i], hi_all, sigma_e,
-                                    m_crest, radiused_crest, arc_shift))
-        if i - 1 in right:
-            roots.append(_one_flat("root", i - 1, x, y, right[i - 1], left[i], lo_all, sigma_e,
-                                   m_root, radiused_root, arc_shift, root_hidden))
+    c_pairs = [(i, left[i], right[i]) for i in sorted(left) if i in right]
+    r_pairs = [(i - 1, right[i - 1], left[i]) for i in sorted(left) if i - 1 in right]
+    # flat floors: all at once; arcs, and roots partly hidden from the line of sight: one
+    # by one
+    if radiused_crest:
+        crests = [_one_flat("crest", i, x, y, fa, fb, hi_all, sigma_e, m_crest, True,
+                            arc_shift) for i, fa, fb in c_pairs]
+    else:
+        crests = _flat_floors("crest", c_pairs, x, y, hi_all, sigma_e, m_crest)
+    if radiused_root or root_hidden is not None:
+        roots = [_one_flat("root", i, x, y, fa, fb, lo_all, sigma_e, m_root, radiused_root,
+                           arc_shift, root_hidden) for i, fa, fb in r_pairs]
+    else:
+        roots = _flat_floors("root", r_pairs, x, y, lo_all, sigma_e, m_root)
     return [c for c in crests if c is not None], [r for r in roots if r is not None]
+
+
+def _ranges(x: np.ndarray, lo: np.ndarray, hi: np.ndarray, i0: np.ndarray, i1: np.ndarray
+            ) -> tuple[np.ndarray, np.ndarray]:
+    """Per row, the slice ``[j0, j1)`` of the sorted ``x`` with ``lo < x < hi`` inside the
+    slice ``[i0, i1)`` (:func:`_open_range` on ``x[i0:i1]``, for many rows at once)."""
+    with np.errstate(invalid="ignore"):
+        empty = ~(lo < hi)
+    j0 = np.minimum(np.maximum(np.searchsorted(x, lo, side="right"), i0), i1)
+    j1 = np.minimum(np.maximum(np.searchsorted(x, hi, side="left"), j0), i1)
+    j1 = np.where(empty, j0, j1)
+    return j0, j1
+
+
+def _gather(j0: np.ndarray, j1: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Point indices of the slices ``[j0[r], j1[r])`` one after another, and their row."""
+    n = np.maximum(j1 - j0, 0)
+    pos = np.arange(int(n.sum())) - np.repeat(np.cumsum(n) - n - j0, n)
+    return pos, np.repeat(np.arange(len(n)), n)
+
+
+def _flat_floors(kind, pairs, x, y, level0, sigma_e, margin):
+    """:func:`_one_flat` for flat floors (not radiused, nothing hidden) of every pair
+    ``(index, fa, fb)`` at once: the same selections, level quantiles and medians; the
+    means and sums are taken flat by flat in point order (equal to rounding)."""
+    if not pairs:
+        return []
+    sgn = 1.0 if kind == "crest" else -1.0
+    m = len(pairs)
+    la = [fa.line for _, fa, _ in pairs]
+    lb = [fb.line for _, _, fb in pairs]
+    xr_a = np.array([ln.x_ref for ln in la])
+    xr_b = np.array([ln.x_ref for ln in lb])
+    yr_a = np.array([ln.y_ref for ln in la])
+    yr_b = np.array([ln.y_ref for ln in lb])
+    k_a = np.array([ln.k for ln in la])
+    k_b = np.array([ln.k for ln in lb])
+    # The flat lies between the two flanks' mid-height points (x is sorted: slices).
+    i0 = np.searchsorted(x, np.minimum(xr_a, xr_b))
+    i1 = np.searchsorted(x, np.maximum(xr_a, xr_b))
+    ok = i1 - i0 >= 2
+    lev0 = np.full(m, float(level0))
+    xa, xb = xr_a + k_a * (lev0 - yr_a), xr_b + k_b * (lev0 - yr_b)
+    # Local level: a chipped crest or a deeper root sits away from the common level.
+    j0, j1 = _ranges(x, np.minimum(xa, xb), np.maximum(xa, xb), i0, i1)
+    local = ok & (j1 - j0 >= 3)
+    if local.any():
+        r = np.flatnonzero(local)
+        pos, seg = _gather(j0[r], j1[r])
+        lev0[r] = segment_quantile(*sorted_segments(y[pos], seg, len(r)),
+                                   0.9 if kind == "crest" else 0.1)
+        xa, xb = xr_a + k_a * (lev0 - yr_a), xr_b + k_b * (lev0 - yr_b)
+    reach = -(margin + 3 * sigma_e)
+    j0, j1 = _ranges(x, xa + 3 * sigma_e, xb - 3 * sigma_e, i0, i1)
+    pos, seg = _gather(j0, j1)
+    near = sgn * (y[pos] - lev0[seg]) > reach
+    pos, seg = pos[near], seg[near]
+    n_sel = np.bincount(seg, minlength=m)
+    fall = ok & (n_sel < 3)
+    if fall.any():  # too few points: the middle half between the flank lines
+        r = np.flatnonzero(fall)
+        c = 0.5 * (xa[r] + xb[r])
+        h = 0.25 * np.abs(xb[r] - xa[r])
+        f0, f1 = _ranges(x, c - h, c + h, i0[r], i1[r])
+        fpos, fseg = _gather(f0, f1)
+        fseg = r[fseg]
+        fnear = sgn * (y[fpos] - lev0[fseg]) > reach
+        keep = ~fall[seg]
+        pos = np.concatenate([pos[keep], fpos[fnear]])
+        seg = np.concatenate([seg[keep], fseg[fnear]])
+        n_sel = np.bincount(seg, minlength=m)
+    good = ok & (n_sel >= 2)
+    use = good[seg]
+    pos, seg = pos[use], seg[use]
+    # fit_level on each floor: median, 3.5 robust sigma (MAD), mean and sample std
+    v = y[pos]
+    dev = np.abs(v - segment_median(*sorted_segments(v, seg, m))[seg])
+    mad = segment_median(*sorted_segments(dev, seg, m))
+    keep = dev <= 3.5 * (1.4826 * mad + 1e-12)[seg]
+    nk = np.bincount(seg, keep, m)
+    keep |= (nk < 2)[seg]
+    seg_k, v_k = seg[keep], v[keep]
+    n = np.bincount(seg_k, minlength=m)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        lev = np.bincount(seg_k, v_k, m) / n
+        d = v_k - lev[seg_k]
+        rms = np.sqrt(np.bincount(seg_k, d * d, m) / (n - 1))
+        std_lev = rms / np.sqrt(n)
+    # width between the flank lines at the fitted level, and its uncertainty (as _one_flat)
+    g = np.flatnonzero(good)
+    lv, slv = lev[g], std_lev[g]
+    xa_l = xr_a[g] + k_a[g] * (lv - yr_a[g])
+    xb_l = xr_b[g] + k_b[g] * (lv - yr_b[g])
+    sa = np.array([[ln.std_x_ref, ln.std_k] for ln in la])[g]
+    sb = np.array([[ln.std_x_ref, ln.std_k] for ln in lb])[g]
+    var_a = np.hypot(sa[:, 0], (lv - yr_a[g]) * sa[:, 1]) ** 2
+    var_b = np.hypot(sb[:, 0], (lv - yr_b[g]) * sb[:, 1]) ** 2
+    std_w = np.sqrt(var_a + var_b + ((k_b[g] - k_a[g]) * slv) ** 2)
+    nan = float("nan")
+    return [Flat(kind, pairs[j][0], xm, level, s_level, w, s_w, nan, nan, n)
+            for j, xm, level, s_level, w, s_w, n in zip(
+                g.tolist(), (0.5 * (xb_l + xa_l)).tolist(), lv.tolist(), slv.tolist(),
+                (xb_l - xa_l).tolist(), std_w.tolist(), n_sel[g].tolist())]
 
 
 def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused, arc_shift=None,
               hidden=None):
     """Flat between flank lines ``fa`` (at smaller x) and ``fb``; crest is above, root below."""
     sgn = 1.0 if kind == "crest" else -1.0
-    # The flat lies between the two flanks' mid-height points; x is sorted, so slice.
-    i0, i1 = np.searchsorted(x, sorted((fa.line.x_ref, fb.line.x_ref)))
+    # The flat lies between the two flanks' mid-height points; x is sorted, so slice (the
+    # x ranges of the local level and of a flat floor below are slices too).
+    ra, rb = sorted((fa.line.x_ref, fb.line.x_ref))
+    i0, i1 = int(x.searchsorted(ra)), int(x.searchsorted(rb))
     x, y = x[i0:i1], y[i0:i1]
     if len(x) < 2:
         return None
     xa, xb = float(fa.line.x_at(level0)), float(fb.line.x_at(level0))
     # Local level: a chipped crest or a deeper root sits away from the common level.
-    around = (x > min(xa, xb)) & (x < max(xa, xb))
-    if around.sum() >= 3:
-        level0 = float(quantile1d(y[around], 0.9 if kind == "crest" else 0.1))
+    j0, j1 = _open_range(x, min(xa, xb), max(xa, xb))
+    if j1 - j0 >= 3:
+        level0 = float(quantile1d(y[j0:j1], 0.9 if kind == "crest" else 0.1))
         xa, xb = float(fa.line.x_at(level0)), float(fb.line.x_at(level0))
     if radiused:
         # Arc points: between the straight-flank ends, beyond the flank band.
@@ -513,23 +663,35 @@ def _one_flat(kind, index, x, y, fa, fb, level0, sigma_e, margin, radiused, arc_
         lo_x, hi_x = lo_x + cut, hi_x - cut
         if hi_x - lo_x < 2 * sigma_e:
             return None  # the whole floor is hidden behind the flanks
-    near = sgn * (y - level0) > -(margin + 3 * sigma_e)
-    sel = (x > lo_x) & (x < hi_x) & near
-    if sel.sum() < 3 and hidden is not None and kind == "root":
+    reach = -(margin + 3 * sigma_e)
+    j0, j1 = _open_range(x, lo_x, hi_x)
+    ys = y[j0:j1]
+    ys = ys[sgn * (ys - level0) > reach]  # near the level
+    if ys.size < 3 and hidden is not None and kind == "root":
         return None
-    if sel.sum() < 3:
+    if ys.size < 3:
         c = 0.5 * (xa + xb)
         h = 0.25 * abs(xb - xa)
-        sel = (x > c - h) & (x < c + h) & near
-        if sel.sum() < 2:
+        j0, j1 = _open_range(x, c - h, c + h)
+        ys = y[j0:j1]
+        ys = ys[sgn * (ys - level0) > reach]
+        if ys.size < 2:
             return None
-    lev, std_lev, _ = fit_level(y[sel])
+    lev, std_lev, _ = fit_level(ys)
     w = float(fb.line.x_at(lev) - fa.line.x_at(lev))
     dk = fb.line.k - fa.line.k
     std_w = math.sqrt(fa.line.std_x_at(lev) ** 2 + fb.line.std_x_at(lev) ** 2
                       + (dk * std_lev) ** 2)
     xm = 0.5 * float(fb.line.x_at(lev) + fa.line.x_at(lev))
-    return Flat(kind, index, xm, lev, std_lev, w, std_w, float("nan"), float("nan"), int(sel.sum()))
+    return Flat(kind, index, xm, lev, std_lev, w, std_w, float("nan"), float("nan"), int(ys.size))
+
+
+def _open_range(x: np.ndarray, lo: float, hi: float) -> tuple[int, int]:
+    """Slice ``[j0, j1)`` of the sorted ``x`` with ``lo < x < hi``."""
+    if not lo < hi:  # empty (also for NaN bounds, as the masks it replaces)
+        return 0, 0
+    j0 = int(x.searchsorted(lo, side="right"))
+    return j0, max(j0, int(x.searchsorted(hi, side="left")))
 
 
 def flat_sag(xy_mm: np.ndarray, limb: LimbProfile, sigma_e_mm: float,
@@ -558,7 +720,7 @@ def flat_sag(xy_mm: np.ndarray, limb: LimbProfile, sigma_e_mm: float,
     left = {f.index: f for f in limb.side("left")}
     right = {f.index: f for f in limb.side("right")}
     flats = limb.crests if kind == "crest" else limb.roots
-    sags, stds, radii = [], [], []
+    rows = []  # per flat: the two flank lines, level, margins, its slice of the sorted x
     for fl in flats:
         fa, fb = ((left.get(fl.index), right.get(fl.index)) if kind == "crest"
                   else (right.get(fl.index), left.get(fl.index + 1)))
@@ -573,28 +735,67 @@ def flat_sag(xy_mm: np.ndarray, limb: LimbProfile, sigma_e_mm: float,
         th = 0.5 * (abs(math.atan(fa.line.k)) + abs(math.atan(fb.line.k)))
         gap = 2.5 * sigma_e_mm / max(math.cos(th), 0.1)
         lo_x, hi_x = sorted((float(fa.line.x_ref), float(fb.line.x_ref)))
-        i0, i1 = np.searchsorted(x, [lo_x, hi_x])
-        px, py = x[i0:i1], y[i0:i1]
-        xa, xb = fa.line.x_at(py), fb.line.x_at(py)
-        inside = ((px > np.minimum(xa, xb) + gap) & (px < np.maximum(xa, xb) - gap)
-                  & (sgn * (py - fl.level) > -(0.5 * abs(fl.level - y_v) + 3 * sigma_e_mm)))
-        if inside.sum() < 5:
-            continue
-        u, v = px[inside], py[inside]
-        xm = 0.5 * (u.min() + u.max())
-        a = np.column_stack([np.ones(len(u)), u - xm, (u - xm) ** 2])
-        sol, *_ = np.linalg.lstsq(a, v, rcond=None)
-        res = v - a @ sol
-        s2 = float(res @ res) / max(len(u) - 3, 1)
+        rows.append((fa.line.x_ref, fa.line.k, fa.line.y_ref, fb.line.x_ref, fb.line.k,
+                     fb.line.y_ref, float(fl.level), gap,
+                     -(0.5 * abs(fl.level - y_v) + 3 * sigma_e_mm), lo_x, hi_x,
+                     abs(float(fl.level) - y_v), th))
+    if not rows:
+        return float("nan"), float("nan"), float("nan")
+    r = np.array(rows)
+    # every flat's points at once (each flat is a slice of the sorted points)
+    pos, seg = _gather(np.searchsorted(x, r[:, 9]), np.searchsorted(x, r[:, 10]))
+    px, py = x[pos], y[pos]
+    xa = r[seg, 0] + r[seg, 1] * (py - r[seg, 2])
+    xb = r[seg, 3] + r[seg, 4] * (py - r[seg, 5])
+    inside = ((px > np.minimum(xa, xb) + r[seg, 7]) & (px < np.maximum(xa, xb) - r[seg, 7])
+              & (sgn * (py - r[seg, 6]) > r[seg, 8]))
+    m = len(rows)
+    valid = np.bincount(seg[inside], minlength=m) >= 5
+    inside &= valid[seg]
+    seg, u, v = seg[inside], px[inside], py[inside]
+    u_hi = np.full(m, -np.inf)
+    u_lo = np.full(m, np.inf)
+    np.maximum.at(u_hi, seg, u)
+    np.minimum.at(u_lo, seg, u)
+    valid &= u_hi > u_lo  # all on one abscissa: no parabola (singular normal matrix)
+    keep = valid[seg]
+    seg, u, v = seg[keep], u[keep], v[keep]
+    f = np.flatnonzero(valid)
+    sags, stds = np.empty(0), np.empty(0)
+    if f.size:
+        # y = a + b z + c z^2 with z = (x - x_mid) / half-span in [-1, 1], so that the sag
+        # |c| w^2 / 4 of the unscaled fit is |c| here; least squares by its normal equations
+        xm = np.zeros(m)
+        hw = np.ones(m)
+        xm[f] = 0.5 * (u_lo[f] + u_hi[f])
+        hw[f] = 0.5 * (u_hi[f] - u_lo[f])
+        z = (u - xm[seg]) / hw[seg]
+        z2 = z * z
+        sm = [np.bincount(seg, w, m)[f] for w in (None, z, z2, z2 * z, z2 * z2)]
+        sm[0] = np.bincount(seg, minlength=m)[f].astype(float)
+        nrm = np.stack([np.stack(sm[i:i + 3], axis=-1) for i in range(3)], axis=-2)
+        rhs = np.stack([np.bincount(seg, w, m)[f] for w in (v, v * z, v * z2)], axis=-1)
         try:
-            std_c = math.sqrt(max(float(np.linalg.inv(a.T @ a)[2, 2]) * s2, 0.0))
-        except np.linalg.LinAlgError:
-            continue
-        w2 = 0.25 * float(np.ptp(u)) ** 2
-        sags.append(-sgn * float(sol[2]) * w2)
-        stds.append(std_c * w2)
-        t = abs(float(fl.level) - y_v)
-        radii.append(t * math.sin(th) / (1.0 - math.sin(th)))
+            ginv = np.linalg.inv(nrm)
+        except np.linalg.LinAlgError:  # a singular floor is left out, the others kept
+            ginv = np.full_like(nrm, np.nan)
+            for i in range(len(f)):
+                try:
+                    ginv[i] = np.linalg.inv(nrm[i])
+                except np.linalg.LinAlgError:
+                    pass
+        fine = np.isfinite(ginv).all(axis=(1, 2))
+        sol = np.einsum("fij,fj->fi", np.where(fine[:, None, None], ginv, 0.0), rhs)
+        full = np.zeros((m, 3))
+        full[f] = sol
+        res = v - (full[seg, 0] + full[seg, 1] * z + full[seg, 2] * z2)
+        cnt = sm[0]
+        s2 = np.bincount(seg, res * res, m)[f] / np.maximum(cnt - 3, 1)
+        sags = -sgn * sol[fine, 2]
+        stds = np.sqrt(np.maximum(ginv[fine, 2, 2] * s2[fine], 0.0))
+        f = f[fine]
+    radii = [t * math.sin(th) / (1.0 - math.sin(th)) for t, th in r[f, 11:13]]
+    sags, stds = sags.tolist(), stds.tolist()
     if not sags:
         return float("nan"), float("nan"), float("nan")
     s_arr, e_arr = np.array(sags), np.array(stds)
