@@ -253,7 +253,8 @@ def _neighbour_normals(xy, contour, closed_of, k: int = 3):
 
 
 def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
-               min_contour_px: int = 12, step: int = 1) -> EdgeSet:
+               min_contour_px: int = 12, step: int = 1,
+               blur_px: float | None = None) -> EdgeSet:
     """Find subpixel edge points of the dark silhouette in a backlit image.
 
     Parameters
@@ -278,6 +279,12 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         ``std_px``, so anything fitted to the points (lines, circles) reports the
         uncertainty of the points it used: about sqrt(step) times larger, for about 1/step
         of the fitting time (a live view that can afford fewer points).
+    blur_px : float, optional
+        The edge blur (Gaussian sigma, px) expected in this picture, e.g. the calibration's
+        for the same set-up. It only sets the window lengths (no result depends on it
+        otherwise) and saves the pilot fit that measures the blur first; where the fitted
+        blur then differs from it by more than 25 %, the edges are found again as without
+        it.
 
     Returns
     -------
@@ -322,6 +329,13 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         raise ValueError(f"min_contour_px must be an int >= 3, got {min_contour_px!r}")
     if isinstance(step, bool) or not isinstance(step, (int, np.integer)) or step < 1:
         raise ValueError(f"step must be an int >= 1, got {step!r}")
+    if blur_px is not None:
+        if isinstance(blur_px, bool) or not isinstance(blur_px, (int, float, np.number)):
+            raise TypeError(f"blur_px must be a number or None, got {type(blur_px).__name__}")
+        if not (math.isfinite(blur_px) and blur_px > 0):
+            raise ValueError(f"blur_px must be finite and > 0, got {blur_px!r}")
+    args = dict(roi=roi, gamma=gamma, min_contrast=min_contrast,
+                min_contour_px=min_contour_px, step=step)
     x_off, y_off, x_end, y_end = _check_roi(roi, a.shape)
     shape = a.shape
     # whole-image work in float32 (half the memory traffic of float64; the profiles are
@@ -360,22 +374,26 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
         warnings.append("no edge found: the image shows no dark silhouette on a bright field")
         return empty_edgeset(shape, warnings)
 
-    # pilot fit on a spread-out subset, for the blur that sets the windows
-    usable = np.flatnonzero(~seeds.corner)
-    if len(usable) == 0:
-        usable = np.arange(n_seed)
-    # a fifth of the profiles, 120 to 150 of them: the median blur of 120 is within ~1 % of
-    # the image's (it sets only the window lengths and the starting blur), and a small
-    # search box (live view) does not pay for a large pilot
-    n_pilot = min(len(usable), _PILOT_N, max(_PILOT_N_MIN, len(usable) // 5))
-    pilot = usable[np.linspace(0, len(usable) - 1, n_pilot).astype(int)]
-    hw_p = np.full(len(pilot), _PILOT_HALF_WINDOW)
-    pr, _, _, p_enough, _, _ = _fit_group(work, fs, raw, seeds, pilot, 1.0, hw=hw_p,
-                                          max_shift=_MAX_SHIFT_PX)
-    sb_p = pr.s * seeds.n_axis[pilot]
-    good_p = pr.converged & p_enough & np.isfinite(sb_p) & (pr.C > 0.3)
-    sigma_b = float(np.median(sb_p[good_p])) if good_p.sum() >= 3 else 1.0
-    sigma_b = min(max(sigma_b, 0.2), 8.0)
+    if blur_px is not None:
+        # the blur expected (calibration): no pilot fit; checked against the fits below
+        sigma_b = min(max(float(blur_px), 0.2), 8.0)
+    else:
+        # pilot fit on a spread-out subset, for the blur that sets the windows
+        usable = np.flatnonzero(~seeds.corner)
+        if len(usable) == 0:
+            usable = np.arange(n_seed)
+        # a fifth of the profiles, 120 to 150 of them: the median blur of 120 is within ~1 % of
+        # the image's (it sets only the window lengths and the starting blur), and a small
+        # search box (live view) does not pay for a large pilot
+        n_pilot = min(len(usable), _PILOT_N, max(_PILOT_N_MIN, len(usable) // 5))
+        pilot = usable[np.linspace(0, len(usable) - 1, n_pilot).astype(int)]
+        hw_p = np.full(len(pilot), _PILOT_HALF_WINDOW)
+        pr, _, _, p_enough, _, _ = _fit_group(work, fs, raw, seeds, pilot, 1.0, hw=hw_p,
+                                              max_shift=_MAX_SHIFT_PX)
+        sb_p = pr.s * seeds.n_axis[pilot]
+        good_p = pr.converged & p_enough & np.isfinite(sb_p) & (pr.C > 0.3)
+        sigma_b = float(np.median(sb_p[good_p])) if good_p.sum() >= 3 else 1.0
+        sigma_b = min(max(sigma_b, 0.2), 8.0)
     if 4.0 * sigma_b + 2.0 > _EDGE_CLEAR_PX:
         # blurry: fit the backlight farther from the edges, beyond their tails
         sil = _flatten(lin, clear_px=4.0 * sigma_b + 2.0)
@@ -431,6 +449,10 @@ def find_edges(img, *, roi=None, gamma: float = 1.0, min_contrast: float = 0.1,
                             1e-9)
     ok = pre & (fit["C"] >= 0.3) & (fit["C"] * scale_seed >= min_contrast)
     med_sb = float(np.median(sb[ok])) if ok.sum() >= 3 else sigma_b
+    if blur_px is not None and abs(med_sb / sigma_b - 1.0) > 0.25:
+        # the picture's blur is not the one expected: windows of the wrong length (and
+        # perhaps the wrong backlight clearance), so start again measuring it first
+        return find_edges(img, **args)
     ok &= (sb <= 2.0 * med_sb + 0.5) & (sb >= 0.4 * med_sb - 0.2)
     dof = fit["dof"]
     s2 = fit["rss"] / dof

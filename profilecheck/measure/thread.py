@@ -220,7 +220,10 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
 
     warnings: list[str] = []
     _check_label(calibration, camera_label, warnings)
-    edges = find_edges(img, roi=roi, gamma=calibration.gamma)
+    # the calibration's blur sets the fit windows (find_edges checks it against the picture)
+    cal_blur = calibration.blur_px
+    edges = find_edges(img, roi=roi, gamma=calibration.gamma,
+                       blur_px=cal_blur if math.isfinite(cal_blur) and cal_blur > 0 else None)
     warnings.extend(str(w) for w in getattr(edges, "warnings", ()))
     sigma_e_px = _edge_quality(edges, calibration, warnings)
     scale = calibration.mm_per_px
