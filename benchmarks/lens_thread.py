@@ -63,8 +63,16 @@ def _one_thread(cam, cal_lens, designation, pitch_mm, major_mm, worst):
     th = truth["thread"]
     spec = thread_spec(designation)
     a = img.astype(float) / 255.0
-    print(f"{'third':7s} {'model':7s} {'pitch %':>9s} {'PD um':>8s} {'left deg':>9s} "
-          f"{'right deg':>9s} {'major um':>9s} {'minor um':>9s} {'U(PD) um':>9s} {'s':>5s}")
+    keys = (("pitch", "pitch um", 1000.0), ("pitch_diameter", "PD um", 1000.0),
+            ("flank_left", "left deg", 1.0), ("flank_right", "right deg", 1.0),
+            ("major_diameter", "major um", 1000.0), ("minor_diameter", "minor um", 1000.0))
+    truth_of = {"pitch": th["pitch_mm"], "pitch_diameter": th["pitch_d_mm"],
+                "flank_left": th["flank_left_deg"], "flank_right": th["flank_right_deg"],
+                "major_diameter": th["major_d_mm"], "minor_diameter": th["minor_d_mm"]}
+    print("error / U (k = 2) per value, '*' where U does not cover the error; "
+          "corr = helix correction on PD (um) and flanks (deg); lensU = lens-parameter term")
+    print(f"{'third':7s} {'model':6s} " + " ".join(f"{lab:>17s}" for _, lab, _ in keys)
+          + f" {'PD corr':>8s} {'fl corr':>7s} {'lensU PD':>8s} {'s':>5s}")
     for k, name in enumerate(("left", "centre", "right")):
         roi = (k * w // 3, 0, (k + 1) * w // 3, h)
         for model, los in (("lens", True), ("naive", False)):
@@ -72,19 +80,34 @@ def _one_thread(cam, cal_lens, designation, pitch_mm, major_mm, worst):
             r = measure_thread(a, cal_lens, spec=spec, roi=roi, line_of_sight=los)
             dt = time.perf_counter() - t
             m = r.measurements
+            cells = []
+            for key, _lab, f in keys:
+                if key not in m:
+                    cells.append(f"{'-':>17s}")
+                    continue
+                e = m[key].value - truth_of[key]
+                cover = abs(e) <= m[key].u
+                cells.append(f"{f * e:+8.3f}/{f * m[key].u:7.3f}{' ' if cover else '*'}")
+                if los and worst is not None:
+                    worst["covered"] = worst["covered"] and cover
+            hx = r.helix
+            fl = max(abs(hx.get("flank_left_correction_deg", 0.0)),
+                     abs(hx.get("flank_right_correction_deg", 0.0)))
+            lu = hx.get("lens_uncertainty", {}).get("terms_expanded", {}).get("pitch_diameter")
+            print(f"{name:7s} {model:6s} " + " ".join(cells)
+                  + f" {1000 * hx.get('pitch_diameter_correction_mm', float('nan')):+8.1f}"
+                  f" {fl:7.3f} {'' if lu is None else f'{1000 * lu:8.3f}':>8s} {dt:5.2f}")
             e_p = m["pitch"].value / th["pitch_mm"] - 1
             e_pd = m["pitch_diameter"].value - th["pitch_d_mm"]
             e_l = m["flank_left"].value - th["flank_left_deg"]
             e_r = m["flank_right"].value - th["flank_right_deg"]
-            e_min = (m["minor_diameter"].value - th["minor_d_mm"]) if "minor_diameter" in m \
-                else float("nan")
-            print(f"{name:7s} {model:7s} {100 * e_p:+9.4f} {1000 * e_pd:+8.2f} {e_l:+9.3f} "
-                  f"{e_r:+9.3f} {1000 * (m['major_diameter'].value - th['major_d_mm']):+9.2f} "
-                  f"{1000 * e_min:+9.2f} {1000 * m['pitch_diameter'].u:9.2f} {dt:5.1f}")
             if los and worst is not None:
                 worst["pitch"] = max(worst["pitch"], abs(e_p))
                 worst["pd"] = max(worst["pd"], abs(e_pd))
                 worst["flank"] = max(worst["flank"], abs(e_l), abs(e_r))
+                worst["u_pd"] = max(worst["u_pd"], m["pitch_diameter"].u)
+            if los and k == 1 and "lens_uncertainty" in r.helix:
+                print("        U terms: " + "; ".join(r.helix["uncertainty_terms"]))
 
 
 def main(argv: list[str]) -> int:
@@ -103,10 +126,14 @@ def main(argv: list[str]) -> int:
           f"Z = {cal_lens.lens.working_distance_mm:.3f} mm")
     t1 = time.perf_counter()
     print(f"calibration {t1 - t0:.1f} s")
-    worst = {"pitch": 0.0, "pd": 0.0, "flank": 0.0}
-    for designation, pitch_mm, major_mm, counts in (("M6x1-6g", 1.0, 6.0, True),
-                                                     ("M10x1.5-6g", 1.5, 10.0, False)):
-        _one_thread(cam, cal_lens, designation, pitch_mm, major_mm, worst if counts else None)
+    worst = {"pitch": 0.0, "pd": 0.0, "flank": 0.0, "u_pd": 0.0, "covered": True}
+    worst10 = {"pitch": 0.0, "pd": 0.0, "flank": 0.0, "u_pd": 0.0, "covered": True}
+    for designation, pitch_mm, major_mm, wd in (("M6x1-6g", 1.0, 6.0, worst),
+                                                ("M10x1.5-6g", 1.5, 10.0, worst10)):
+        _one_thread(cam, cal_lens, designation, pitch_mm, major_mm, wd)
+    for label, wd in (("M6x1", worst), ("M10x1.5", worst10)):
+        print(f"{label} with the lens model: largest U(PD) {1000 * wd['u_pd']:.2f} um; U covers "
+              f"every error shown: {'yes' if wd['covered'] else 'NO'}")
     print(f"worst with the lens model (M6x1): pitch {100 * worst['pitch']:.4f} % (target "
           f"{100 * PITCH_TARGET_REL} %, ratio {worst['pitch'] / PITCH_TARGET_REL:.2f}); PD "
           f"{1000 * worst['pd']:.2f} um (target 5 um, ratio {worst['pd'] / PD_TARGET_MM:.2f}); "

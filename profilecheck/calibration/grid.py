@@ -211,8 +211,9 @@ def _fit(obj: list[np.ndarray], img: list[np.ndarray], size: tuple[int, int], fl
     res = cv2.calibrateCameraExtended(
         [o.astype(np.float32) for o in obj], [p.astype(np.float32).reshape(-1, 1, 2) for p in img],
         size, None, None, flags=flags, criteria=crit)
-    rms, k, d, rvecs, tvecs, std_in, _std_ex, per_view = res
-    return float(rms), k, d.ravel(), rvecs, tvecs, std_in.ravel(), per_view.ravel()
+    rms, k, d, rvecs, tvecs, std_in, std_ex, per_view = res
+    return (float(rms), k, d.ravel(), rvecs, tvecs, std_in.ravel(), per_view.ravel(),
+            std_ex.ravel())
 
 
 def _holdout(obj, img, size, flags) -> list[float]:
@@ -289,7 +290,7 @@ def calibrate_lens_from_points(object_points: Sequence[np.ndarray], image_points
         score = float(np.mean(hold))
         if best is None or (score < best[2] * (1.0 - _RICHER_GAIN)):
             best = (t, fit, score, hold)
-    t, (rms, k, d, rvecs, tvecs, std_in, per_view), _, hold = best
+    t, (rms, k, d, rvecs, tvecs, std_in, per_view, std_ex), _, hold = best
     d5 = np.zeros(5)
     d5[:min(5, len(d))] = d[:5]
 
@@ -318,9 +319,12 @@ def calibrate_lens_from_points(object_points: Sequence[np.ndarray], image_points
         warnings.append(f"a held-out view misses by {max(hold):.3f} px (fit RMS {rms:.3f} px): "
                         f"check that view for motion blur or a warped board")
     reach = max(float(np.max(np.hypot(p[:, 0] - k[0, 2], p[:, 1] - k[1, 2]))) for p in img)
+    std_z = _std_distance_mm(dists, std_ex)
+    # expanded (k = 2) like u_fx_px; standard deviations from the fit's covariance
     lens = Lens(fx_px=fx, fy_px=fy, cx_px=float(k[0, 2]), cy_px=float(k[1, 2]),
                 dist=tuple(float(v) for v in d5), rms_reprojection_px=rms, u_fx_px=2.0 * std_fx,
-                grid_radius_px=reach)
+                grid_radius_px=reach, u_fy_px=2.0 * std_fy, u_cx_px=2.0 * float(std_in[2]),
+                u_cy_px=2.0 * float(std_in[3]), u_working_distance_mm=2.0 * std_z)
     return GridCalibration(
         lens=lens, image_size=(w, h), square_mm=float(square_mm), pattern=tuple(pattern),
         terms=t, rms_px=rms, per_view_rms_px=tuple(float(v) for v in per_view),
@@ -328,6 +332,26 @@ def calibrate_lens_from_points(object_points: Sequence[np.ndarray], image_points
         std_cx_px=float(std_in[2]), std_cy_px=float(std_in[3]),
         view_tilt_deg=tuple(tilts), view_distance_mm=tuple(dists),
         n_points=int(sum(len(o) for o in obj)), warnings=tuple(warnings))
+
+
+def _std_distance_mm(dists: list[float], std_ex: np.ndarray) -> float:
+    """Standard uncertainty (mm) of the working distance Z the board views give.
+
+    Z is taken as the boards' distance (the median over views, as
+    :func:`profilecheck.calibration.grid_record` does; :func:`attach_lens` then fixes it
+    from the gauge as f s). The views stand at different distances on purpose, so the
+    measurement plane is known from them only to within their range: half of it as a
+    rectangular term (GUM 4.3.7), combined (GUM 5.1.2) with the median fitted standard
+    deviation of the view translations along the optical axis (``stdDeviationsExtrinsics``
+    of ``cv2.calibrateCameraExtended``: rx, ry, rz, tx, ty, tz per view). For Z from a
+    gauge this is a conservative figure (f s alone is known far better).
+    """
+    z = np.asarray(dists, dtype=np.float64)
+    half_range = 0.5 * float(z.max() - z.min()) if len(z) else float("nan")
+    ex = np.asarray(std_ex, dtype=np.float64).ravel()
+    tz = ex[5::6] if len(ex) >= 6 else np.array([0.0])
+    tz = tz[np.isfinite(tz)]
+    return math.hypot(half_range / math.sqrt(3.0), float(np.median(tz)) if len(tz) else 0.0)
 
 
 def _normal_spread_deg(rvecs) -> float:

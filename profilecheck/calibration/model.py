@@ -21,7 +21,7 @@ from __future__ import annotations
 import json
 import math
 import os
-from dataclasses import dataclass, field, asdict, replace
+from dataclasses import dataclass, field, asdict, astuple, replace
 from pathlib import Path
 from typing import Any
 
@@ -33,7 +33,7 @@ __all__ = ["Calibration", "Lens", "save_calibration", "load_calibration", "FORMA
 FORMAT_VERSION = 1
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class Lens:
     """Pinhole intrinsics and radial distortion from a grid calibration (OpenCV model).
 
@@ -43,6 +43,15 @@ class Lens:
     ``rms_reprojection_px`` of the grid fit; ``grid_radius_px`` the largest distance of a
     grid corner from the principal point over all views (None when unknown, as in files
     written before it was kept): beyond it the distortion is extrapolated.
+
+    Uncertainties, all EXPANDED (k = 2, docs/conventions.md), NaN when unknown (files
+    written before they were kept): ``u_fx_px``, ``u_fy_px`` of the focal lengths and
+    ``u_cx_px``, ``u_cy_px`` of the principal point, from the grid fit's covariance
+    (``stdDeviationsIntrinsics`` of ``cv2.calibrateCameraExtended``, :mod:`.grid`);
+    ``u_working_distance_mm`` of Z as the grid views fix it (spread of the board distances
+    and their fitted translation uncertainty, :mod:`.grid`). With ``u_cx_px`` and
+    ``u_cy_px`` known, thread measurements propagate them into every value
+    (:mod:`profilecheck.measure.thread`); without them a conservative model term is kept.
     """
 
     fx_px: float
@@ -54,6 +63,23 @@ class Lens:
     rms_reprojection_px: float = float("nan")
     u_fx_px: float = float("nan")
     grid_radius_px: float | None = None
+    u_fy_px: float = float("nan")
+    u_cx_px: float = float("nan")
+    u_cy_px: float = float("nan")
+    u_working_distance_mm: float = float("nan")
+
+    def _key(self) -> tuple:
+        # NaN stands for "unknown": two records both lacking a value are the same record
+        return tuple("nan" if isinstance(v, float) and math.isnan(v) else v
+                     for v in astuple(self))
+
+    def __eq__(self, other: object) -> bool:
+        if other.__class__ is not self.__class__:
+            return NotImplemented
+        return self._key() == other._key()
+
+    def __hash__(self) -> int:
+        return hash(self._key())
 
 
 @dataclass(frozen=True)
@@ -186,7 +212,8 @@ class Calibration:
                 raise CalibrationError(f"{source}: lens is missing {e.args[0]}") from None
             if lens.get("grid_radius_px") is not None:
                 lk["grid_radius_px"] = _num(lens["grid_radius_px"], "lens.grid_radius_px", source)
-            for k in ("working_distance_mm", "rms_reprojection_px", "u_fx_px"):
+            for k in ("working_distance_mm", "rms_reprojection_px", "u_fx_px", "u_fy_px",
+                      "u_cx_px", "u_cy_px", "u_working_distance_mm"):
                 if k in lens:
                     lk[k] = _num(lens[k], f"lens.{k}", source, allow_nan=True)
             dist = lens.get("dist", [0, 0, 0, 0, 0])

@@ -9,7 +9,10 @@ Budget per value (GUM 5.1.2, independent terms in quadrature, then U = 2 u_c):
   (diameters 2, flats 2 (1 - sin theta)/cos theta, pitch diameter and wires 2/sin theta,
   radii 1; pitch, angles and depth are immune: same-polarity);
 * helix model: 10 % of the correction applied, rectangular (50 % for the first-order
-  correction of rounded crests and roots); with one edge and no spec (``helix['bounded']``)
+  correction of rounded crests and roots); with the per-point line-of-sight model and the
+  lens parameters' own uncertainties propagated (``lens_model``), 2 % on pitch diameter
+  and over-wire (``_LENS_MODEL``: the evidence is stated there); with one edge and no spec
+  (``helix['bounded']``)
   the correction computed for the smallest usual diameter is an upper bound, the true one
   lies between 0 and it: half is applied and half of it is a rectangular term
   (GUM 4.3.7, a = |correction| / 2);
@@ -36,6 +39,21 @@ __all__ = ["assemble"]
 
 _MODEL = 0.1 / math.sqrt(3.0)
 _ARC_MODEL = 0.5 / math.sqrt(3.0)
+#: Helix model term with a lens whose own uncertainties are propagated (``lens_model``):
+#: 2 % of the per-point correction, rectangular, on pitch diameter and over-wire.
+#: Evidence (pinhole ray-cast renders of M6x1 and M10x1.5 in every third of a 16 mm field
+#: at Z = 50 mm: benchmarks/lens_thread.py, tests/test_lens_thread_measure.py and
+#: tests/test_lens_thread_uncertainty.py): with every point referred along its own line of
+#: sight the pitch-diameter error stays within 0.2 um for corrections of 35-190 um (at most
+#: 0.11 % of the correction) and the flank errors within 0.011 deg for corrections of
+#: 0.09-0.54 deg, inside their statistical terms; the model is exact for straight flanks
+#: (._thread_sight Notes). 2 % is about twenty times the largest PD residual seen (margin
+#: for what the renders do not hold: flanks not quite straight, an axis slightly out of the
+#: plane; common practice, no source for the factor). Flanks keep 10 % (their render errors,
+#: up to 0.011 deg on corrections from 0.09 deg, are not a small share of the correction,
+#: and with 2 % the expanded uncertainty only just covered them), flats keep 10 %
+#: (off-centre their ends are cut by the crests) and the arc terms stay as without a lens.
+_LENS_MODEL = 0.02 / math.sqrt(3.0)
 
 
 def _m(value: float, std: float, unit: str, n: int, note: str = "", residual: float = float("nan")
@@ -83,10 +101,17 @@ def _level(limb: tp.LimbProfile, kind: str) -> tuple[float, float]:
 
 
 def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], spec: Any,
-             cal: Any, helix: dict[str, Any], both: bool, sigma_e: float
+             cal: Any, helix: dict[str, Any], both: bool, sigma_e: float,
+             lens_model: bool = False
              ) -> tuple[dict[str, Measured], dict[str, Any], list[str]]:
     """Return ``(measurements, per_tooth, notes)``; ``helix`` is completed in place with the
-    size of the correction on each value."""
+    size of the correction on each value.
+
+    ``lens_model`` True: the per-point line-of-sight model with the lens parameters' own
+    uncertainties propagated by the caller (:func:`.thread._lens_terms`); the helix model
+    term on pitch diameter and over-wire is then ``_LENS_MODEL`` (module constants)
+    instead of 10 %."""
+    model = _LENS_MODEL if lens_model else _MODEL
     limbs = list(fitted.values())
     rlimbs = list(raw.values())
     rel = 0.5 * cal.u_mm_per_px / cal.mm_per_px           # scale, standard, relative
@@ -198,7 +223,7 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
         g_pd = 2.0 / math.sin(theta)
         meas["pitch_diameter"] = _m(pd, math.sqrt(
             t.std_pitch_line_y ** 2 + bm.std_pitch_line_y ** 2 + (g_pd * sb) ** 2
-            + (pd * rel) ** 2 + (_MODEL * corr) ** 2 + absorbed(pd, g_pd) ** 2 + floor ** 2), "mm",
+            + (pd * rel) ** 2 + (model * corr) ** 2 + absorbed(pd, g_pd) ** 2 + floor ** 2), "mm",
             t.n_points + bm.n_points,
             note=f"axial section; helix correction {corr * 1000:+.1f} um applied")
         # Virtual three-wire reading over best-size wires.
@@ -215,7 +240,7 @@ def assemble(fitted: dict[str, tp.LimbProfile], raw: dict[str, tp.LimbProfile], 
             psi = math.atan(lead / (math.pi * pd))
             m_real = m_planar + lead_term_mm(wire, math.radians(half_deg), psi)
             meas["over_wire"] = _m(m_real, math.sqrt(
-                s_m ** 2 + (g_pd * sb) ** 2 + (m_real * rel) ** 2 + (_MODEL * corr) ** 2
+                s_m ** 2 + (g_pd * sb) ** 2 + (m_real * rel) ** 2 + (model * corr) ** 2
                 + floor ** 2 + absorbed(m_real, g_pd) ** 2), "mm", n_w,
                 note=f"virtual reading over {wire:.4f} mm wires, lead-angle term of ASME B1.2 / "
                      "H28 (exact form) included")

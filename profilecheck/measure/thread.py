@@ -22,7 +22,14 @@ Pipeline (see docs/conventions.md for frames and signs):
    fit and tooth-to-tooth scatter, the calibration's scale (relative, on every length) and
    edge offset (on widths and diameters), and a model term of 10 % of the helix correction
    (rectangular); with one edge and no spec the correction is only bounded (half applied,
-   half a rectangular term);
+   half a rectangular term). With the per-point line-of-sight model and a lens record that
+   holds its own uncertainties (principal point, working distance; :class:`Lens`), those
+   are propagated into every value by central finite differences (GUM 5.1.3: each moved
+   by +/- its standard uncertainty, step 3-5 run again, six extra passes, about 0.1 s on a
+   480 x 700 px crop) and the model term on pitch diameter and over-wire is 2 % of the
+   correction (evidence in :mod:`._thread_values`; flanks and flats keep 10 %); ``helix['uncertainty_terms']``
+   and ``helix['lens_uncertainty']`` say what made U. A lens record without them (older
+   files) keeps the 10 % term, with a note;
 6. against a spec: ISO 14253-1 checks, the infeed still to go, the tolerance envelope.
 
 Without a lens in the calibration (gauge only) the view is taken as telecentric and every
@@ -32,9 +39,10 @@ Known gaps: with a lens but only one edge in view the axis (and so each ray's ge
 unknown and the points are read as a parallel view (a warning says so); the part's axis is
 assumed in the measurement plane and square to the optical axis; off-centre the crests
 hide the ends of flat roots from the inclined rays (those ends are left out, and a root
-hidden entirely gives no level), but rounded roots get no such treatment; the 10 % helix
-model term is kept with a lens although the renders show
-the per-point model to within 0.1 um (it makes U(PD) about 15-18 um).
+hidden entirely gives no level), but rounded roots get no such treatment; the lens
+parameters are taken as independent (the grid fit's covariance is not kept) and the
+principal point is moved only as the foot of the projection centre, not as the centre of
+the distortion; the axial-tilt-only reading (one edge, no spec) keeps the 10 % term.
 """
 
 from __future__ import annotations
@@ -293,22 +301,30 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
         axis_y = -off1 if name1 == "top" else off1
     sight = (_sight_model(calibration, frame, axis_y)
              if (line_of_sight and (both or spec is not None)) else None)
+    lens_pass = None
     if sight is not None:
-        from ._thread_sight import refer_to_axial_section
         lead0 = (spec.lead_mm if spec is not None
                  else float(np.mean([limb.pitch for limb in raw.values()])))
         rh0 = not bool(getattr(spec, "left_hand", False)) if spec is not None else True
         sr = sr - np.array([0.0, axis_y])  # measured from the axis
+        frame0 = frame
         if axis_y:
             o_ax = np.asarray(frame.o) + axis_y / scale * np.asarray(frame.n_up)
             frame = AxisFrame((float(o_ax[0]), float(o_ax[1])), frame.u)
         plane_sr = sr
-        sr, tan_gamma = refer_to_axial_section(sr, sight, lead_mm=lead0, right_hand=rh0)
-        for name, m in (("top", top_m), ("bottom", bot_m)):
-            if m is not None:
-                raw[name] = tp.analyse_limb(_limb_xy(sr, m, name == "top", 0.0),
-                                            sigma_e_mm=sigma_e, **_drops(form, raw[name]))
-        sight = (sight, plane_sr, tan_gamma)
+        raw0 = dict(raw)
+
+        def lens_pass(sight_i, warn, _plane=plane_sr, _raw0=raw0, _form=form):
+            """Sight referral, raw refit, helix pass (:mod:`._thread_sight`, :mod:`.helix`)."""
+            from ._thread_sight import refer_to_axial_section
+            sr_i, tg_i = refer_to_axial_section(_plane, sight_i, lead_mm=lead0, right_hand=rh0)
+            raw_i = {name: tp.analyse_limb(_limb_xy(sr_i, m, name == "top", 0.0),
+                                           sigma_e_mm=sigma_e, **_drops(_form, _raw0[name]))
+                     for name, m in (("top", top_m), ("bottom", bot_m)) if m is not None}
+            helix_i, fitted_i = _helix_pass(raw_i, sr_i, top_m, bot_m, frame, spec,
+                                            calibration, sigma_e, _form, both, warn,
+                                            (sight_i, _plane, tg_i))
+            return sr_i, raw_i, helix_i, fitted_i
     elif calibration.lens is not None and line_of_sight:
         # one edge: the axis is not known, so only each ray's inclination along the axis
         # (tan gamma = (x - x_principal) / f along the axis direction) is used
@@ -324,13 +340,35 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
         warnings.append("lens model: distortion removed but lines of sight not followed "
                         "(parallel view assumed); diameters and flanks read large off-centre")
 
-    helix, fitted = _helix_pass(raw, sr, top_m, bot_m, frame, spec, calibration, sigma_e, form,
-                                both, warnings, sight)
-    helix["line_of_sight"] = ("parallel view assumed" if sight is None
-                              else "per point (perspective referred to the axial section)"
-                              if sight[0] is not None else "axial tilt per point only")
     from ._thread_values import assemble
-    meas, per_tooth, notes = assemble(fitted, raw, spec, calibration, helix, both, sigma_e)
+    if lens_pass is not None:
+        sr, raw, helix, fitted = lens_pass(sight, warnings)
+        helix["line_of_sight"] = "per point (perspective referred to the axial section)"
+        std_in = _lens_std_inputs(calibration)
+        if std_in is None:
+            meas, per_tooth, notes = assemble(fitted, raw, spec, calibration, helix, both,
+                                              sigma_e)
+            notes.append("lens parameters without uncertainties in the calibration (a file "
+                         "from before they were kept): the line-of-sight correction carries "
+                         "the conservative model term of 10 % of the helix correction; "
+                         "recalibrate the lens for a budget from its own uncertainties")
+            helix["uncertainty_terms"] = _U_TERMS_OLD
+        else:
+            meas, per_tooth, notes = assemble(fitted, raw, spec, calibration, helix, both,
+                                              sigma_e, lens_model=True)
+            meas, lens_d = _lens_terms(meas, lens_pass, calibration, frame0, axis_y, std_in,
+                                       helix["line_of_sight"], spec, both, sigma_e)
+            helix["lens_uncertainty"] = lens_d
+            helix["uncertainty_terms"] = _U_TERMS_LENS
+            notes.append(lens_d["note"])
+    else:
+        helix, fitted = _helix_pass(raw, sr, top_m, bot_m, frame, spec, calibration, sigma_e,
+                                    form, both, warnings, sight)
+        helix["line_of_sight"] = ("parallel view assumed" if sight is None
+                                  else "axial tilt per point only")
+        meas, per_tooth, notes = assemble(fitted, raw, spec, calibration, helix, both, sigma_e)
+        if calibration.lens is not None and sight is not None:
+            helix["uncertainty_terms"] = _U_TERMS_OLD
     for kind in ("crest", "root"):
         if form.get(f"{kind}_from_data"):
             notes.append(f"the {kind}s are rounded in the picture and were fitted as arcs "
@@ -364,6 +402,114 @@ def measure_thread(image: Any, calibration: Calibration, *, spec: Any = None,
     return ThreadResult(meas, checks, verdict, tuple(dict.fromkeys(warnings)), overlays,
                         tuple(notes), per_tooth, helix, infeed, image_name, cal_d,
                         spec.to_dict() if spec is not None else None, both, axis)
+
+
+#: What makes U with a lens (reported in ``helix['uncertainty_terms']``).
+_U_TERMS_LENS = ("statistics (fit and tooth-to-tooth)", "scale", "edge offset", "edge model",
+                 "lens parameters (principal point cx, cy and working distance Z, propagated "
+                 "by finite differences, GUM 5.1.3)",
+                 "helix model: 2 % of the per-point correction on pitch diameter and "
+                 "over-wire (10 % on flanks and flats, the arc terms as without a lens)")
+_U_TERMS_OLD = ("statistics (fit and tooth-to-tooth)", "scale", "edge offset", "edge model",
+                "helix model: 10 % of the correction (lens parameters' own uncertainties not "
+                "in the calibration)")
+
+
+def _lens_std_inputs(cal: Calibration) -> dict[str, Any] | None:
+    """Standard uncertainties (k = 1) of the lens inputs of the line-of-sight model, or
+    None when the calibration does not hold them (then the 10 % model term is kept).
+
+    ``cx_px``, ``cy_px`` from the lens record (expanded / 2); ``working_distance_mm`` from
+    it when kept, else from Z = f s (how :func:`profilecheck.calibration.attach_lens`
+    makes Z): relative uncertainties of a product in quadrature (GUM 5.1.6), f from
+    ``u_fx_px``, s from the calibration's ``u_mm_per_px``. The focal length enters the
+    per-point model only through Z (and the undistortion, whose centre and coefficients
+    are fitted together; their covariance is not kept), so it is not perturbed apart.
+    """
+    lens = cal.lens
+    ucx, ucy = float(lens.u_cx_px), float(lens.u_cy_px)
+    if not (math.isfinite(ucx) and math.isfinite(ucy)):
+        return None
+    z = float(lens.working_distance_mm)
+    uz = float(lens.u_working_distance_mm)
+    if math.isfinite(uz):
+        std_z, src = 0.5 * uz, "lens calibration (board distances)"
+    elif math.isfinite(lens.u_fx_px):
+        f = 0.5 * (lens.fx_px + lens.fy_px)
+        std_z = z * math.hypot(0.5 * lens.u_fx_px / f, 0.5 * cal.u_mm_per_px / cal.mm_per_px)
+        src = "Z = f s (focal length and scale uncertainties, GUM 5.1.6)"
+    else:
+        return None
+    return {"cx_px": 0.5 * ucx, "cy_px": 0.5 * ucy, "working_distance_mm": std_z,
+            "z_source": src}
+
+
+def _lens_terms(meas, lens_pass, cal, frame0, axis_y, std_in, los, spec, both, sigma_e):
+    """Add the lens-parameter term to every value (GUM 5.1.3, sensitivities by central
+    finite differences: each input moved by +/- its standard uncertainty, the sight
+    referral, raw refit, helix pass and value assembly run again; inputs independent,
+    their covariance not being kept). Returns ``(measurements, report dict)``."""
+    import time
+    from dataclasses import replace as _replace
+    from ..errors import ProfilecheckError
+    from ..quantity import K_COVERAGE
+    from ._thread_values import assemble
+
+    t0 = time.perf_counter()
+    lens = cal.lens
+    std_k: dict[str, float] = {k: 0.0 for k in meas}
+    per_input: dict[str, dict[str, float]] = {}
+    passes = 0
+    for name in ("cx_px", "cy_px", "working_distance_mm"):
+        std = float(std_in[name])
+        got = []
+        for sgn in (1.0, -1.0):
+            l2 = _replace(lens, **{name: getattr(lens, name) + sgn * std})
+            try:
+                sight_i = _sight_model(_replace(cal, lens=l2), frame0, axis_y)
+                _, raw_i, helix_i, fitted_i = lens_pass(sight_i, [])
+                helix_i["line_of_sight"] = los
+                m_i, _, _ = assemble(fitted_i, raw_i, spec, cal, helix_i, both, sigma_e,
+                                     lens_model=True)
+            except (ProfilecheckError, ValueError):
+                m_i = None
+            passes += 1
+            got.append(m_i)
+        per_input[name] = {}
+        for k, m0 in meas.items():
+            vp = got[0][k].value if got[0] is not None and k in got[0] else None
+            vm = got[1][k].value if got[1] is not None and k in got[1] else None
+            if vp is not None and vm is not None:
+                d = 0.5 * abs(vp - vm)           # |c_i| u_i, c_i = (f+ - f-) / (2 u_i)
+            elif vp is not None or vm is not None:
+                d = abs((vp if vp is not None else vm) - m0.value)  # one-sided (GUM 5.1.3 note)
+            else:
+                d = float("nan")
+            per_input[name][k] = d
+            std_k[k] = math.hypot(std_k[k], d) if math.isfinite(d) else float("nan")
+    out = {}
+    for k, m0 in meas.items():
+        s_l = std_k[k]
+        if not math.isfinite(s_l):
+            # no perturbed pass gave this value: its own standard uncertainty once more
+            # (conservative; common practice, no source)
+            s_l = 0.5 * abs(m0.u)
+        out[k] = _replace(m0, u=float(K_COVERAGE * math.hypot(0.5 * m0.u, s_l)))
+    dt = time.perf_counter() - t0
+    rep = {
+        "inputs_std": {"cx_px": std_in["cx_px"], "cy_px": std_in["cy_px"],
+                       "working_distance_mm": std_in["working_distance_mm"]},
+        "working_distance_u_source": std_in["z_source"],
+        "terms_expanded": {k: K_COVERAGE * v for k, v in std_k.items()},
+        "per_input_std": per_input, "passes": passes, "time_s": dt,
+        "note": ("U with the lens model: statistics, scale, edge offset, edge model, the lens "
+                 "parameters (principal point and working distance, each moved by its "
+                 "standard uncertainty and the line-of-sight referral, helix pass and values "
+                 f"run again, {passes} passes, GUM 5.1.3) and a helix model term of 2 % of the "
+                 "per-point correction on pitch diameter and over-wire (10 % on flanks and "
+                 "flats)"),
+    }
+    return out, rep
 
 
 def _form(spec: Any) -> dict[str, Any]:
