@@ -160,3 +160,23 @@ def test_any_text_gives_a_spec_or_a_spec_error(text):
         assert "\n" not in str(e)
     else:
         assert s.pitch_mm > 0 and s.major_diameter_mm > s.minor_diameter_mm > 0
+
+
+@pytest.mark.parametrize("text, canonical", [
+    # the canonical forms: ASME B1.1 clause 4 (number sizes with '#'), ISO 965-1 clause 4
+    # (left hand designated 'LH' after the tolerance class); the spellings are shop-floor
+    # usage (common practice, no source)
+    ("No. 10-32 UNF-2A", "10-32 UNF-2A"),
+    ("no 4-40 UNC-2A", "4-40 UNC-2A"),
+    ('1/4"-20 UNC-2A', "1/4-20 UNC-2A"),
+    ('1-1/2" -6 UNC-2A', "1-1/2-6 UNC-2A"),
+    ("M8x1.25LH-6g", "M8x1.25-6g-LH"),
+    ("M8x1.25 LH-6g", "M8x1.25-6g-LH"),
+    ("M8x1.25-LH-6g", "M8x1.25-6g-LH"),
+    ("Tr20x4 LH-7e", "Tr20x4-7e-LH"),
+])
+def test_shop_floor_spellings(text, canonical):
+    from profilecheck.standards import thread_spec
+    spec = thread_spec(text)
+    assert spec.designation == canonical
+    assert spec.left_hand == canonical.endswith("LH")

@@ -18,6 +18,9 @@ Grammar (case-insensitive except the ISO tolerance letters, whose case says exte
 * Whitworth form: ``1/4 BSW``, ``1/4-26 BSF``, ``3/16-40 ME`` (constant-pitch 26/32/40 tpi),
   ``3/8-26 BSB``; BA: ``4BA``; Acme: ``1/2-10 ACME[-2G]``; trapezoidal ``Tr20x4[-7e]``,
   multi-start ``Tr20x8(P4)``.
+* Also read: ``No. 10-32 UNF`` (for ``#10-32 UNF``), an inch mark after the size
+  (``1/4"-20 UNC-2A``), and ``LH`` before the class (``M8x1.25LH-6g``, ``Tr20x4 LH-7e``),
+  which the canonical form puts last as ISO 965-1 does (``M8x1.25-6g-LH``).
 * Forms without class letters take ``-INT`` for an internal thread (``1/4 BSW-INT``,
   ``1/2-10 ACME-2G-INT``); external is the default.
 """
@@ -182,6 +185,14 @@ def parse_designation(text: str) -> Designation:
         s = re.sub(rf"(\d)\s*{k}", rf"\1-{v}", s).replace(k, v)
     if not s:
         raise _bad(original, "empty")
+    # spellings seen on drawings: 'No. 10-32 UNF' for '#10-32 UNF'; an inch mark after the
+    # size ('1/4"-20 UNC'); 'LH' between the pitch and the tolerance class
+    # ('M8x1.25LH-6g', 'Tr20x4 LH-7e') where ISO 965-1 puts it last ('M8x1.25-6g-LH')
+    s = re.sub(r"^N[OR]\.?\s*(?=\d)", "#", s, flags=re.IGNORECASE)
+    s = re.sub(r"^([#\d][\d/. -]*?\d)\s*[\"\u2033]\s*(?=-|\s)", r"\1", s)
+    m = re.match(r"^((?:M|TR)\s*\d[^-]*?)[\s-]*LH\s*-\s*(\w+)$", s, re.IGNORECASE)
+    if m:
+        s = f"{m.group(1)}-{m.group(2)}-LH"
     s, left, starts, internal = _strip_suffixes(s)
     if starts is not None and starts < 1:
         raise _bad(original, "the number of starts must be 1 or more")
