@@ -174,6 +174,12 @@ def test_any_text_gives_a_spec_or_a_spec_error(text):
     ("M8x1.25 LH-6g", "M8x1.25-6g-LH"),
     ("M8x1.25-LH-6g", "M8x1.25-6g-LH"),
     ("Tr20x4 LH-7e", "Tr20x4-7e-LH"),
+    ("M6x1 6g", "M6x1-6g"),
+    ("M10x1.25 6H", "M10x1.25-6H"),
+    ("1/4-20 UNC 2A", "1/4-20 UNC-2A"),
+    ("1/4-20UNC2A", "1/4-20 UNC-2A"),
+    ("3/8-24 UNF 3B LH", "3/8-24 UNF-3B-LH"),
+    ("1/4-20 UNRC 2A", "1/4-20 UNRC-2A"),
 ])
 def test_shop_floor_spellings(text, canonical):
     from profilecheck.standards import thread_spec

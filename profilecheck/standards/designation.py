@@ -19,8 +19,9 @@ Grammar (case-insensitive except the ISO tolerance letters, whose case says exte
   ``3/8-26 BSB``; BA: ``4BA``; Acme: ``1/2-10 ACME[-2G]``; trapezoidal ``Tr20x4[-7e]``,
   multi-start ``Tr20x8(P4)``.
 * Also read: ``No. 10-32 UNF`` (for ``#10-32 UNF``), an inch mark after the size
-  (``1/4"-20 UNC-2A``), and ``LH`` before the class (``M8x1.25LH-6g``, ``Tr20x4 LH-7e``),
-  which the canonical form puts last as ISO 965-1 does (``M8x1.25-6g-LH``).
+  (``1/4"-20 UNC-2A``), ``LH`` before the class (``M8x1.25LH-6g``, ``Tr20x4 LH-7e``),
+  which the canonical form puts last as ISO 965-1 does (``M8x1.25-6g-LH``), and the class
+  after a space or run on (``M6x1 6g``, ``1/4-20 UNC 2A``, ``1/4-20UNC2A``).
 * Forms without class letters take ``-INT`` for an internal thread (``1/4 BSW-INT``,
   ``1/2-10 ACME-2G-INT``); external is the default.
 """
@@ -194,6 +195,11 @@ def parse_designation(text: str) -> Designation:
     if m:
         s = f"{m.group(1)}-{m.group(2)}-LH"
     s, left, starts, internal = _strip_suffixes(s)
+    # the class after a space instead of a hyphen ('M6x1 6g', '1/4-20 UNC 2A'), or run on
+    # ('1/4-20UNC2A')
+    s = re.sub(r"^(M\s*\d[^\s-]*)\s+(\d[A-Ha-h]\w*)$", r"\1-\2", s, flags=re.IGNORECASE)
+    s = re.sub(r"(?<![A-Z])(UNR?EF|UNR?[CFS]|UNR?)\s*-?\s*([123][AB])$", r"\1-\2", s,
+               flags=re.IGNORECASE)
     if starts is not None and starts < 1:
         raise _bad(original, "the number of starts must be 1 or more")
     d = (_parse_metric(s, original) or _parse_tr(s, original) or _parse_ba(s, original)
