@@ -36,6 +36,13 @@ __all__ = ["calibrate_from_pin", "calibrate_from_block", "measure_pin",
 #: coherence about +0.1 to +0.3 px at 3-10 um/px) stay inside it. Ours.
 ASSUMED_EDGE_OFFSET_BOUND_PX = 0.5
 
+#: The gauge picture's response is checked (:func:`profilecheck.imaging.estimate_gamma`) and a
+#: note given when the estimate differs from the declared gamma by more than this and by
+#: more than 4 of its standard uncertainties (on linear renders of the bundled pins the
+#: estimate is 0.97-1.00 +/- 0.04; common practice, no source for the thresholds).
+GAMMA_CHECK_MIN = 0.3
+GAMMA_CHECK_K = 4.0
+
 #: Edge blur sigma (px) above which a gauge image is called out of focus (ours, no source;
 #: cv2.estimateChessboardSharpness's 3 px 10-90 % rise equals sigma 1.2 px, so 3 px is far
 #: beyond a focused view).
@@ -140,9 +147,37 @@ def _scale_from_width(kind: str, size_mm: float, width_px: float, lens: Lens | N
     return s
 
 
+def gamma_check_note(img: np.ndarray, gamma: float, roi=None) -> str | None:
+    """A note when the gauge picture's grey levels do not look like the declared gamma.
+
+    An un-inverted gamma moves every blurred edge toward the dark side (0.81 sigma_e at
+    gamma 2.2, vision-notes section 4); a gauge calibration in the same light absorbs part
+    of it, but not for sizes unlike the gauge's. The response is estimated from the shape
+    of the gauge's own edges (:func:`profilecheck.imaging.estimate_gamma`); None when it
+    agrees, or when the edges are too sharp or too few for an estimate.
+    """
+    from ..errors import MeasurementError
+    from ..imaging import estimate_gamma
+
+    try:
+        est = estimate_gamma(img, roi=roi)
+    except (MeasurementError, ValueError):
+        return None
+    g, sd = float(est.gamma), float(est.std)
+    if not (math.isfinite(g) and math.isfinite(sd)):
+        return None
+    if abs(g - gamma) <= max(GAMMA_CHECK_MIN, GAMMA_CHECK_K * sd):
+        return None
+    return (f"the gauge picture's grey levels look like a camera gamma of {g:.2f} +/- "
+            f"{2 * sd:.2f} (k = 2), not the {gamma:g} declared: an unlinearised response moves "
+            f"every edge toward the dark side; set the camera to a linear response, or "
+            f"calibrate with --gamma {g:.1f} (the calibration then linearises every picture "
+            f"measured with it)")
+
+
 def _gauge_cal(kind: str, size_mm: float, bar: BarEdges, edges: Any, img: np.ndarray, *,
                u_gauge_mm: float, gamma: float, label: str, lens: Lens | None,
-               thickness_mm: float = 0.0) -> Calibration:
+               thickness_mm: float = 0.0, roi=None) -> Calibration:
     s = _scale_from_width(kind, size_mm, bar.width_px, lens, thickness_mm)
     rel_std = combine_u(bar.std_width_px / bar.width_px, (u_gauge_mm / K_COVERAGE) / size_mm)
     notes = [f"scale from one {size_mm:.4f} mm {kind}: it includes the edge offset, so widths "
@@ -156,6 +191,9 @@ def _gauge_cal(kind: str, size_mm: float, bar: BarEdges, edges: Any, img: np.nda
     if u_gauge_mm == 0:
         notes.append("no gauge uncertainty given (--gauge-u): the scale uncertainty leaves out "
                      "the gauge's own tolerance")
+    g_note = gamma_check_note(img, gamma, roi)
+    if g_note:
+        notes.append(g_note)
     gauge = {"kind": kind, "size_mm": size_mm, "u_mm": u_gauge_mm, "width_px": bar.width_px,
              "std_width_px": bar.std_width_px, "nonparallel_deg": bar.nonparallel_deg,
              "n_points": bar.n_points, "rms_px": bar.rms_px, "length_px": bar.length_px}
@@ -215,7 +253,8 @@ def calibrate_from_pin(image: Any, diameter_mm: float, *, u_gauge_mm: float = 0.
     u = _check_u("u_gauge_mm", u_gauge_mm)
     g = _check_gamma(gamma)
     img, edges, bar = _bar(image, "pin", roi, g, lens)
-    return _gauge_cal("pin", d, bar, edges, img, u_gauge_mm=u, gamma=g, label=label, lens=lens)
+    return _gauge_cal("pin", d, bar, edges, img, u_gauge_mm=u, gamma=g, label=label, lens=lens,
+                      roi=roi)
 
 
 def calibrate_from_block(image: Any, width_mm: float, *, u_gauge_mm: float = 0.0, gamma: float = 1.0,
@@ -241,7 +280,7 @@ def calibrate_from_block(image: Any, width_mm: float, *, u_gauge_mm: float = 0.0
     t = _check_u("thickness_mm", thickness_mm)
     img, edges, bar = _bar(image, "block", roi, g, lens)
     return _gauge_cal("block", w, bar, edges, img, u_gauge_mm=u, gamma=g, label=label, lens=lens,
-                      thickness_mm=t)
+                      thickness_mm=t, roi=roi)
 
 
 def measure_pin(image: Any, calibration: Calibration, *, roi=None) -> Measured:

@@ -23,7 +23,7 @@ from ..errors import CalibrationError
 from ..quantity import K_COVERAGE, combine_u
 from ._pair import fit_edge_line, MIN_EDGE_LENGTH_PX, EDGE_LOCATION_BOUND_PX
 from .gauges import (_load, utc_now, _check_size, _check_u, _check_gamma,
-                     ASSUMED_EDGE_OFFSET_BOUND_PX)
+                     gamma_check_note, ASSUMED_EDGE_OFFSET_BOUND_PX)
 from .lens import undistort_points
 from .model import Calibration, Lens
 
@@ -364,6 +364,9 @@ def calibrate_from_lines(image: Any, spacing_mm: float, *, line_width_mm: float 
     blur = float(np.median(blur_list))
     sigma_e = math.sqrt(blur ** 2 + 1.0 / 12.0)
     notes = []
+    g_note = gamma_check_note(img, g, roi)
+    if g_note:
+        notes.append(g_note)
     if float(np.mean(raw >= 1.0 - 1e-9)) > 1e-4:
         notes.append("pixels are clipped at full brightness: lower the exposure or backlight "
                      "(clipped samples were left out of the line fits)")
