@@ -46,10 +46,11 @@ EDGE_OFFSET_MAX_STD_WIDTH_PX = 0.02
 #: 2-3 blur sigmas: common practice, no source).
 MIN_WIDTH_OVER_SIGMA_E = 2.5
 
-_MIN_POINTS = 20          # profiles a line needs (ours, no source)
-_BIN_PX = 0.5             # projection bin (px along the line normal)
+_MIN_POINTS = 20          # profiles a line needs (common practice, no source)
+_BIN_PX = 0.5             # projection bin, px along the line normal (common practice, no source)
 _BLUR_GUESS_PX = 1.6      # sets window clearances before the blur is measured (vision-notes 6)
-_PEAK_REL = 0.25          # projection peaks below this share of the deepest are not lines (ours)
+#: projection peaks below this share of the deepest are not lines (common practice, no source)
+_PEAK_REL = 0.25
 
 
 def _position_along(line: Any, ref: np.ndarray, u: np.ndarray) -> tuple[float, float]:
@@ -331,7 +332,7 @@ def calibrate_from_lines(image: Any, spacing_mm: float, *, line_width_mm: float 
     sw_stat = np.array([f[3] for f in found])
     est = float(np.median(np.diff(c)))
     # dark lines must leave bright gaps between them (a fifth of the spacing at least;
-    # ours, no source): else the "lines" may be the gaps of a scale imaged inverted
+    # common practice, no source): else the "lines" may be the gaps of a scale imaged inverted
     if est <= 0 or est < 1.25 * float(np.median(widths)):
         raise CalibrationError(f"{hint} (lines too close together for their width)")
     index = np.round((c - c[0]) / est)
